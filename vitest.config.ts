@@ -1,0 +1,36 @@
+import { defineConfig } from "vitest/config";
+import { fileURLToPath } from "node:url";
+
+const root = fileURLToPath(new URL(".", import.meta.url));
+
+export default defineConfig({
+  resolve: { alias: { "@": root, "server-only": `${root}test/support/server-only-stub.ts` } },
+  test: {
+    projects: [
+      {
+        extends: true,
+        test: { name: "unit", include: ["test/analysis/**/*.test.ts", "test/stats/**/*.test.ts", "test/unit/**/*.test.ts"] },
+      },
+      {
+        extends: true,
+        test: {
+          name: "integration",
+          include: ["test/integration/**/*.test.ts"],
+          testTimeout: 60_000,
+          hookTimeout: 120_000,
+          fileParallelism: false,
+        },
+      },
+      {
+        extends: true,
+        test: {
+          name: "e2e",
+          include: ["test/e2e/**/*.test.ts"],
+          testTimeout: 120_000,
+          hookTimeout: 300_000,
+          fileParallelism: false,
+        },
+      },
+    ],
+  },
+});
