@@ -1,0 +1,260 @@
+/**
+ * Public contract of the Lapsebank analysis core. Everything here is plain data so that
+ * results can be stored as JSON and compared across analysis versions.
+ */
+
+/** Bump whenever a change can alter any stored analysis result. */
+export const ANALYSIS_VERSION = "1.0.0";
+
+// --- input ---
+
+/** One parsed logger row; units already normalised by ingest. */
+export interface RawSample {
+  /** Seconds since the first row of the file. */
+  elapsedS: number;
+  /** GPS altitude above mean sea level, metres (geometric). */
+  altitudeM: number | null;
+  /** In the unit of TemperatureCalibration.input (counts, V, mV, °C, K, °F). */
+  rawTemperature: number | null;
+  pressureHpa: number | null;
+  relativeHumidityPct: number | null;
+  latitudeDeg: number | null;
+  longitudeDeg: number | null;
+  /** 1-based line in the raw file, for messages. */
+  sourceLine: number;
+}
+
+/** ADC full-scale divisor: 2^N (classic AVR) or 2^N − 1 (others). */
+export type AdcDivisor = "2^N" | "2^N-1";
+export interface AdcSpec {
+  bits: number;
+  referenceV: number;
+  divisor: AdcDivisor;
+}
+
+export type ThermistorEquation =
+  | { kind: "steinhart-hart"; a: number; b: number; c: number }
+  | { kind: "beta"; beta: number; r0Ohm: number; t0K: number };
+
+export type SensorModel =
+  /** V = offsetV + scaleMvPerK · T[K] / 1000; a 10 mV/K sensor has scale 10, offset 0. */
+  | { kind: "linear-voltage"; scaleMvPerK: number; offsetV: number }
+  /**
+   * Thermistor in a voltage divider fed by supplyV with a fixed seriesOhm resistor.
+   * "high": thermistor between supply and the measured node; "low": between node and ground.
+   */
+  | {
+      kind: "thermistor-divider";
+      supplyV: number;
+      seriesOhm: number;
+      thermistorSide: "high" | "low";
+      equation: ThermistorEquation;
+    }
+  /** T[K] = Σ c_i · x^i, x = the raw reading (counts, V or whatever the column holds). */
+  | { kind: "polynomial"; coefficients: number[] }
+  /** Column already is a temperature (°C/K/°F per input). */
+  | { kind: "direct" };
+
+export type TemperatureInput = "counts" | "volts" | "millivolts" | "celsius" | "kelvin" | "fahrenheit";
+
+export interface TemperatureCalibration {
+  input: TemperatureInput;
+  /** Required when input is counts and the sensor model needs volts. */
+  adc?: AdcSpec;
+  sensor: SensorModel;
+  /** Two-point/field correction applied last: T' = gain · T + offsetK. */
+  correction?: { gain: number; offsetK: number };
+}
+
+export interface SiteInfo {
+  latitudeDeg: number;
+  longitudeDeg: number;
+  elevationM: number;
+}
+
+export interface AnalysisParameters {
+  /** Altitude bin size, m. */
+  binSizeM: number;
+  /** Tropopause search starts above this altitude, m. */
+  tropopauseSearchFloorM: number;
+  /** First-order sensor-lag correction T_air = T_s + τ dT_s/dt. */
+  lagCorrection: { enabled: boolean; timeConstantS: number };
+  /** Moving-average window used before differentiating for the lag correction, s. */
+  smoothingWindowS: number;
+  /** Hampel filter half-window, samples. */
+  hampelWindowSamples: number;
+  /** Hampel threshold in robust sigmas (1.4826 · MAD). */
+  hampelThresholdSigmas: number;
+  /** GPS jump filter: larger vertical speeds between kept samples are rejected, m/s. */
+  maxVerticalSpeedMPerS: number;
+  /** Inversion layers separated by less than this are merged, m. */
+  inversionMergeGapM: number;
+  /** Fixed altitude bands (above mean sea level) reported for every flight, m. */
+  fixedBandsM: Array<{ baseM: number; topM: number }>;
+}
+
+export const DEFAULT_ANALYSIS_PARAMETERS: AnalysisParameters = {
+  binSizeM: 100,
+  tropopauseSearchFloorM: 5000,
+  lagCorrection: { enabled: false, timeConstantS: 0 },
+  smoothingWindowS: 5,
+  hampelWindowSamples: 7,
+  hampelThresholdSigmas: 3,
+  maxVerticalSpeedMPerS: 60,
+  inversionMergeGapM: 100,
+  fixedBandsM: [
+    { baseM: 0, topM: 2000 },
+    { baseM: 2000, topM: 5000 },
+    { baseM: 5000, topM: 10000 },
+  ],
+};
+
+export interface FlightAnalysisInput {
+  samples: readonly RawSample[];
+  calibration: TemperatureCalibration;
+  site: SiteInfo;
+  parameters?: Partial<AnalysisParameters>;
+}
+
+// --- output ---
+
+export type Phase = "ascent" | "descent";
+
+export interface CalibratedSample {
+  elapsedS: number;
+  altitudeM: number;
+  temperatureK: number;
+  pressureHpa: number | null;
+  relativeHumidityPct: number | null;
+  phase: Phase;
+  sourceLine: number;
+}
+
+export interface ProfileLevel {
+  phase: Phase;
+  baseM: number;
+  topM: number;
+  /** Bin centre, m. */
+  altitudeM: number;
+  sampleCount: number;
+  temperatureK: number;
+  temperatureSdK: number | null;
+  pressureHpa: number | null;
+  relativeHumidityPct: number | null;
+}
+
+export type StabilityClass = "absolutely-stable" | "conditionally-unstable" | "absolutely-unstable";
+export type LayerKind = "surface-inversion" | "elevated-inversion" | "troposphere" | "stratosphere" | "band";
+
+export interface LayerStat {
+  kind: LayerKind;
+  phase: Phase;
+  baseM: number;
+  topM: number;
+  /** −dT/dz by ordinary least squares over the layer's levels, K/km. */
+  lapseRateKPerKm: number;
+  lapseRateStdErrKPerKm: number | null;
+  rSquared: number | null;
+  theilSenLapseRateKPerKm: number | null;
+  levelCount: number;
+  /** Inversions only: T(top) − T(base), K. */
+  strengthK: number | null;
+  meanTemperatureK: number;
+  meanPressureHpa: number;
+  /** True when meanPressureHpa came from the standard atmosphere, not from measurements. */
+  pressureFromStandardAtmosphere: boolean;
+  dryAdiabaticLapseRateKPerKm: number;
+  moistAdiabaticLapseRateKPerKm: number;
+  stability: StabilityClass;
+}
+
+export type TropopauseResult =
+  | { status: "found"; altitudeM: number; temperatureK: number; pressureHpa: number | null }
+  | { status: "undetermined"; reason: string }
+  | { status: "not-found" };
+
+export interface QcWarning {
+  code: string;
+  message: string;
+}
+
+export interface QcReport {
+  removed: {
+    preLaunch: number;
+    postLanding: number;
+    duplicateTimes: number;
+    gpsJumps: number;
+    temperatureSpikes: number;
+    missingValues: number;
+    outOfRange: number;
+  };
+  /** "sorted" when rows had to be re-ordered (with a warning). */
+  timeOrder: "monotonic" | "sorted";
+  /** Short machine codes, e.g. "no-ascent", "few-levels", "sorted-times". */
+  flags: string[];
+  /** Human-readable, shown in the UI. */
+  warnings: QcWarning[];
+}
+
+export interface FlightSummaryValues {
+  launchElapsedS: number | null;
+  burstElapsedS: number | null;
+  landingElapsedS: number | null;
+  launchAltitudeM: number | null;
+  burstAltitudeM: number | null;
+  maxAltitudeM: number | null;
+  surfaceTemperatureK: number | null;
+  troposphericLapseRateKPerKm: number | null;
+  troposphericLapseRateStdErrKPerKm: number | null;
+  tropopauseAltitudeM: number | null;
+  tropopauseTemperatureK: number | null;
+  tropopausePressureHpa: number | null;
+  secondTropopauseAltitudeM: number | null;
+  /** Null when there is no surface inversion (then hasSurfaceInversion is false). */
+  surfaceInversionDepthM: number | null;
+  surfaceInversionStrengthK: number | null;
+  hasSurfaceInversion: boolean;
+  stratosphericLapseRateKPerKm: number | null;
+  hasDescent: boolean;
+  hasPressure: boolean;
+  hasHumidity: boolean;
+}
+
+export interface FlightAnalysis {
+  analysisVersion: string;
+  parameters: AnalysisParameters;
+  /** False when nothing usable came out (no ascent, empty input, invalid calibration…); warnings say why. */
+  ok: boolean;
+  samples: CalibratedSample[];
+  levels: ProfileLevel[];
+  layers: LayerStat[];
+  /** From the ascent profile. */
+  tropopause: { first: TropopauseResult; second: TropopauseResult };
+  summary: FlightSummaryValues;
+  qc: QcReport;
+}
+
+/** One problem found by validateCalibration. */
+export interface CalibrationIssue {
+  field: string;
+  message: string;
+}
+
+export type CalibrationErrorCode =
+  | "invalid-parameter"
+  | "missing-adc"
+  | "unsupported-input"
+  | "too-few-points"
+  | "singular-fit";
+
+/** Thrown only by explicit calibration helpers (fits, strict checks); analyseFlight never throws it. */
+export class CalibrationError extends Error {
+  readonly code: CalibrationErrorCode;
+  readonly field: string;
+  constructor(code: CalibrationErrorCode, field: string, message: string) {
+    super(message);
+    this.name = "CalibrationError";
+    this.code = code;
+    this.field = field;
+  }
+}
