@@ -87,8 +87,13 @@ export interface AnalysisParameters {
   hampelThresholdSigmas: number;
   /** GPS jump filter: larger vertical speeds between kept samples are rejected, m/s. */
   maxVerticalSpeedMPerS: number;
-  /** Inversion layers separated by less than this are merged, m. */
+  /**
+   * Inversion layers separated by a non-inversion stretch no thicker than this are merged, m.
+   * At bin resolution a one-bin interruption counts as thinner than the threshold.
+   */
   inversionMergeGapM: number;
+  /** Inversions weaker than this (T(top) − T(base)) are ignored as noise, K. */
+  inversionMinStrengthK: number;
   /** Fixed altitude bands (above mean sea level) reported for every flight, m. */
   fixedBandsM: Array<{ baseM: number; topM: number }>;
 }
@@ -102,6 +107,7 @@ export const DEFAULT_ANALYSIS_PARAMETERS: AnalysisParameters = {
   hampelThresholdSigmas: 3,
   maxVerticalSpeedMPerS: 60,
   inversionMergeGapM: 100,
+  inversionMinStrengthK: 0.3,
   fixedBandsM: [
     { baseM: 0, topM: 2000 },
     { baseM: 2000, topM: 5000 },
@@ -134,7 +140,7 @@ export interface ProfileLevel {
   phase: Phase;
   baseM: number;
   topM: number;
-  /** Bin centre, m. */
+  /** Mean altitude of the samples in the bin (the bin centre for a steady climb through a full bin), m. */
   altitudeM: number;
   sampleCount: number;
   temperatureK: number;
@@ -170,7 +176,8 @@ export interface LayerStat {
 
 export type TropopauseResult =
   | { status: "found"; altitudeM: number; temperatureK: number; pressureHpa: number | null }
-  | { status: "undetermined"; reason: string }
+  /** candidateAltitudeM: the lowest level that met the 2 K/km test but could not be confirmed. */
+  | { status: "undetermined"; reason: string; candidateAltitudeM: number | null }
   | { status: "not-found" };
 
 export interface QcWarning {
