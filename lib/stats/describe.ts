@@ -112,7 +112,8 @@ export function describe(values: readonly number[]): Description {
 
   const sorted = [...finite].sort((x, y) => x - y);
   const { mean: scaledMean, sumSquares, scale } = scaledMoments(sorted);
-  const mean = scaledMean * scale;
+  // Rounding can push the mean of near-equal values a hair outside their range; clamp it back.
+  const mean = Math.min(sorted[n - 1] ?? 0, Math.max(sorted[0] ?? 0, scaledMean * scale));
   const q1 = quantileSorted(sorted, 0.25);
   const q3 = quantileSorted(sorted, 0.75);
 
