@@ -1,7 +1,7 @@
 /**
  * Seeded pseudo-random numbers for reproducible resampling and test data.
  *
- * lib/stats is pure, so nothing here reads the clock or Math.random: every stream starts from an
+ * lib/stats is pure, so nothing here reads the clock or an unseeded generator: every stream starts from an
  * explicit integer seed and the same seed always gives the same sequence on every platform.
  */
 
