@@ -1,0 +1,289 @@
+import { Readable } from "node:stream";
+import { parse as createCsvParser } from "csv-parse";
+import type { RawSample } from "../analysis/types.ts";
+import { fileIssue, IngestFailure, type IngestIssue } from "./errors.ts";
+import { DELIMITER_CHARACTERS, describeColumn, type LayoutColumnKey, type LoggerLayoutSpec } from "./layout.ts";
+
+export type ParseMode = "strict" | "lenient";
+
+export interface ParseOptions {
+  fileName: string;
+  mode: ParseMode;
+  /** UTC date used for clock-time columns (HH:MM:SS has no date of its own). */
+  clockDateUtc?: Date | null;
+  /** Issues reported before giving up in strict mode. */
+  maxIssues?: number;
+}
+
+export interface ParsedLoggerFile {
+  samples: RawSample[];
+  /** Absolute time of the first data row, when the time column carries a date. */
+  fileStartUtc: Date | null;
+  header: string[] | null;
+  dataRowCount: number;
+  /** Rows skipped in lenient mode, each with the reason. */
+  skippedRows: IngestIssue[];
+}
+
+interface ResolvedColumn {
+  key: LayoutColumnKey;
+  index: number; // 0-based
+  name: string;
+}
+
+const FIELD_ORDER: LayoutColumnKey[] = ["time", "altitude", "temperature", "pressure", "humidity", "latitude", "longitude"];
+const TEXT_DECODER = new TextDecoder("utf-8", { fatal: true });
+
+/** Decodes bytes as UTF-8 text, refusing binary files and invalid encodings with a clear message. */
+export function decodeLoggerText(bytes: Uint8Array, fileName: string): string {
+  if (bytes.byteLength === 0) throw new IngestFailure("empty-file", [fileIssue(fileName, "empty-file", "The file is empty")]);
+  const head = bytes.subarray(0, Math.min(bytes.byteLength, 8192));
+  if (head.includes(0)) {
+    throw new IngestFailure("binary-file", [fileIssue(fileName, "binary-file", "This looks like a binary file, not a text logger file (it contains NUL bytes)")]);
+  }
+  let text: string;
+  try {
+    text = TEXT_DECODER.decode(bytes);
+  } catch {
+    throw new IngestFailure("not-utf8", [fileIssue(fileName, "not-utf8", "The file is not valid UTF-8 text; save it as UTF-8 (or plain ASCII) and upload it again")]);
+  }
+  return text.charCodeAt(0) === 0xfeff ? text.slice(1) : text;
+}
+
+/** Whitespace-separated files: collapse runs of blanks to one tab so the CSV parser can read them. */
+function normaliseWhitespace(text: string, commentPrefix: string | null): string {
+  return text
+    .split(/\r?\n/)
+    .map((line) => (commentPrefix && line.trimStart().startsWith(commentPrefix) ? line : line.trim().split(/[ \t]+/).join("\t")))
+    .join("\n");
+}
+
+function resolveColumns(layout: LoggerLayoutSpec, header: string[] | null, fileName: string, headerLine: number): ResolvedColumn[] {
+  const issues: IngestIssue[] = [];
+  const resolved: ResolvedColumn[] = [];
+  const normalisedHeader = header?.map((h) => h.trim().toLowerCase()) ?? null;
+  for (const key of FIELD_ORDER) {
+    const mapping = layout.columns[key];
+    if (!mapping) continue;
+    const ref = mapping.column;
+    if (typeof ref === "number") {
+      resolved.push({ key, index: ref - 1, name: header?.[ref - 1]?.trim() ?? `column ${ref}` });
+      continue;
+    }
+    if (!normalisedHeader) {
+      issues.push({ ...fileIssue(fileName, "missing-header", `The layout names column "${ref}" but says the file has no header row`), line: 1 });
+      continue;
+    }
+    const index = normalisedHeader.indexOf(ref.trim().toLowerCase());
+    if (index < 0) {
+      const hint =
+        normalisedHeader.length === 1
+          ? ` The header row has only one field ("${header?.[0] ?? ""}"): is the delimiter (${layout.delimiter}) right?`
+          : ` The header has: ${header?.map((h) => `"${h.trim()}"`).join(", ")}.`;
+      issues.push({
+        code: "missing-column",
+        message: `Column ${describeColumn(ref)} for ${key} is not in the header row.${hint}`,
+        file: fileName,
+        line: headerLine,
+        column: null,
+        columnName: ref,
+      });
+      continue;
+    }
+    resolved.push({ key, index, name: header?.[index]?.trim() ?? ref });
+  }
+  if (issues.length) throw new IngestFailure("missing-column", issues);
+  return resolved;
+}
+
+const CLOCK_TIME = /^(\d{1,2}):(\d{2})(?::(\d{2}(?:\.\d+)?))?$/;
+const HAS_ZONE = /(Z|[+-]\d{2}:?\d{2})$/i;
+
+function parseNumber(raw: string, decimalComma: boolean): number | null | "invalid" {
+  const text = raw.trim();
+  if (text === "" || /^(nan|na|n\/a|null|-)$/i.test(text)) return null;
+  const normalised = decimalComma ? text.replace(",", ".") : text;
+  if (!/^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(normalised)) return "invalid";
+  return Number(normalised);
+}
+
+/**
+ * Reads a logger file with a layout into raw samples, streaming rows through csv-parse.
+ * Altitude is converted to metres and pressure to hPa here (the edge); temperature stays raw
+ * for the calibration. Errors name the file, line and column. Strict mode refuses any bad
+ * row; lenient mode skips bad rows and lists them.
+ */
+export async function parseLoggerFile(bytes: Uint8Array, layout: LoggerLayoutSpec, options: ParseOptions): Promise<ParsedLoggerFile> {
+  const { fileName, mode } = options;
+  const maxIssues = options.maxIssues ?? 20;
+  let text = decodeLoggerText(bytes, fileName);
+  if (layout.delimiter === "whitespace") text = normaliseWhitespace(text, layout.commentPrefix);
+  const delimiter = layout.delimiter === "whitespace" ? "\t" : DELIMITER_CHARACTERS[layout.delimiter];
+  const decimalComma = layout.decimalSeparator === ",";
+
+  const parser = Readable.from([text]).pipe(
+    createCsvParser({
+      delimiter,
+      comment: layout.commentPrefix ?? undefined,
+      comment_no_infix: true,
+      relax_column_count: true,
+      relax_quotes: true,
+      skip_empty_lines: true,
+      info: true,
+    }),
+  );
+
+  const samples: RawSample[] = [];
+  const issues: IngestIssue[] = [];
+  const skippedRows: IngestIssue[] = [];
+  let header: string[] | null = null;
+  let columns: ResolvedColumn[] | null = layout.hasHeader ? null : resolveColumns(layout, null, fileName, 1);
+  let firstAbsoluteMs: number | null = null;
+  let previousClockS: number | null = null;
+  let dayOffsetS = 0;
+  let previousElapsedS: number | null = null;
+  let dataRowCount = 0;
+  const clockDate = options.clockDateUtc ?? null;
+
+  const reject = (issue: IngestIssue) => {
+    if (mode === "lenient") skippedRows.push(issue);
+    else issues.push(issue);
+  };
+
+  try {
+    for await (const chunk of parser as AsyncIterable<{ record: string[]; info: { lines: number } }>) {
+      const { record, info } = chunk;
+      const line = info.lines;
+      if (!columns) {
+        header = record;
+        columns = resolveColumns(layout, header, fileName, line);
+        continue;
+      }
+      dataRowCount++;
+      const values: Partial<Record<LayoutColumnKey, number | null>> = {};
+      let rowIssue: IngestIssue | null = null;
+      for (const column of columns) {
+        const field = record[column.index];
+        if (field === undefined) {
+          rowIssue = {
+            code: "short-row",
+            message: `The row has ${record.length} field${record.length === 1 ? "" : "s"} but ${column.key} is in column ${column.index + 1} (truncated or wrongly delimited line?)`,
+            file: fileName, line, column: column.index + 1, columnName: column.name,
+          };
+          break;
+        }
+        if (column.key === "time" && layout.columns.time.format !== "elapsed-seconds") {
+          const parsedTime = parseTimeField(field, layout.columns.time.format, clockDate);
+          if (parsedTime === "invalid" || parsedTime === "needs-date") {
+            rowIssue = {
+              code: parsedTime === "needs-date" ? "clock-time-needs-date" : "bad-time",
+              message:
+                parsedTime === "needs-date"
+                  ? "Clock times need the launch date: give the launch time with the upload"
+                  : `"${field}" is not a ${layout.columns.time.format === "clock-time" ? "clock time (HH:MM:SS)" : "ISO 8601 date-time"}`,
+              file: fileName, line, column: column.index + 1, columnName: column.name,
+            };
+            break;
+          }
+          let absoluteMs = parsedTime;
+          if (layout.columns.time.format === "clock-time") {
+            // Clock times roll over at midnight UTC: a jump back of more than 12 h is the next day.
+            const clockS = (parsedTime - (clockDate ? Date.UTC(clockDate.getUTCFullYear(), clockDate.getUTCMonth(), clockDate.getUTCDate()) : 0)) / 1000;
+            if (previousClockS !== null && clockS + dayOffsetS < previousClockS - 12 * 3600) dayOffsetS += 86400;
+            previousClockS = clockS + dayOffsetS;
+            absoluteMs = parsedTime + dayOffsetS * 1000;
+          }
+          firstAbsoluteMs ??= absoluteMs;
+          values.time = (absoluteMs - firstAbsoluteMs) / 1000;
+          continue;
+        }
+        const parsed = parseNumber(field, decimalComma);
+        if (parsed === "invalid") {
+          rowIssue = {
+            code: "not-a-number",
+            message: `"${field.trim().slice(0, 40)}" is not a number (expected ${column.key}${decimalComma ? ", decimal comma" : ""})`,
+            file: fileName, line, column: column.index + 1, columnName: column.name,
+          };
+          break;
+        }
+        values[column.key] = parsed;
+      }
+      if (!rowIssue && (values.time === null || values.time === undefined)) {
+        const timeColumn = columns.find((c) => c.key === "time");
+        rowIssue = { code: "missing-time", message: "The time field is empty", file: fileName, line, column: (timeColumn?.index ?? 0) + 1, columnName: timeColumn?.name ?? null };
+      }
+      if (!rowIssue && mode === "strict" && previousElapsedS !== null && (values.time as number) < previousElapsedS) {
+        const timeColumn = columns.find((c) => c.key === "time");
+        rowIssue = {
+          code: "time-backwards",
+          message: `Time goes backwards here (${values.time} s after ${previousElapsedS} s); fix the file or upload in lenient mode to have rows sorted`,
+          file: fileName, line, column: (timeColumn?.index ?? 0) + 1, columnName: timeColumn?.name ?? null,
+        };
+      }
+      if (rowIssue) {
+        reject(rowIssue);
+        if (issues.length >= maxIssues) break;
+        continue;
+      }
+      const elapsedS = values.time as number;
+      previousElapsedS = elapsedS;
+      samples.push({
+        elapsedS,
+        altitudeM: toMetres(values.altitude ?? null, layout.columns.altitude?.unit),
+        rawTemperature: values.temperature ?? null,
+        pressureHpa: toHpa(values.pressure ?? null, layout.columns.pressure?.unit),
+        relativeHumidityPct: values.humidity ?? null,
+        latitudeDeg: values.latitude ?? null,
+        longitudeDeg: values.longitude ?? null,
+        sourceLine: line,
+      });
+    }
+  } catch (error) {
+    if (error instanceof IngestFailure) throw error;
+    const message = error instanceof Error ? error.message : String(error);
+    const lineMatch = /line (\d+)/i.exec(message);
+    throw new IngestFailure("unreadable", [
+      { ...fileIssue(fileName, "unreadable", `The file could not be read as ${layout.delimiter}-separated text: ${message}`), line: lineMatch ? Number(lineMatch[1]) : null },
+    ]);
+  }
+
+  if (issues.length) throw new IngestFailure("bad-rows", issues);
+  if (!columns) throw new IngestFailure("no-header", [fileIssue(fileName, "no-header", "The file has no header row and no data (only comments or blank lines?)")]);
+  if (samples.length === 0) {
+    const reason = skippedRows.length ? `all ${skippedRows.length} data rows were bad; first: ${skippedRows[0]?.message}` : "there are no data rows";
+    throw new IngestFailure("no-data", [fileIssue(fileName, "no-data", `Nothing to analyse: ${reason}`), ...skippedRows.slice(0, maxIssues)]);
+  }
+  return {
+    samples,
+    fileStartUtc: firstAbsoluteMs === null ? null : new Date(firstAbsoluteMs),
+    header,
+    dataRowCount,
+    skippedRows,
+  };
+}
+
+function parseTimeField(field: string, format: "clock-time" | "iso-datetime", clockDate: Date | null): number | "invalid" | "needs-date" {
+  const text = field.trim();
+  if (format === "iso-datetime") {
+    if (!/^\d{4}-\d{2}-\d{2}[T ]\d{2}:\d{2}/.test(text)) return "invalid";
+    const ms = Date.parse(HAS_ZONE.test(text) ? text.replace(" ", "T") : `${text.replace(" ", "T")}Z`);
+    return Number.isFinite(ms) ? ms : "invalid";
+  }
+  const match = CLOCK_TIME.exec(text);
+  if (!match) return "invalid";
+  const [hours, minutes, seconds] = [Number(match[1]), Number(match[2]), Number(match[3] ?? 0)];
+  if (hours > 23 || minutes > 59 || seconds >= 61) return "invalid";
+  if (!clockDate) return "needs-date";
+  const midnight = Date.UTC(clockDate.getUTCFullYear(), clockDate.getUTCMonth(), clockDate.getUTCDate());
+  return midnight + ((hours * 60 + minutes) * 60 + seconds) * 1000;
+}
+
+function toMetres(value: number | null, unit: "m" | "ft" | undefined): number | null {
+  if (value === null) return null;
+  return unit === "ft" ? value * 0.3048 : value; // international foot, exact
+}
+
+function toHpa(value: number | null, unit: "hPa" | "Pa" | "mbar" | undefined): number | null {
+  if (value === null) return null;
+  return unit === "Pa" ? value / 100 : value; // 1 mbar = 1 hPa
+}
