@@ -107,8 +107,14 @@ const DELIMITERS: Record<LoggerLayoutSpec["delimiter"], string> = {
   whitespace: " ",
 };
 
-function pad2(value: number): string {
-  return value < 10 ? `0${value}` : String(value);
+/** Like toFixed, with a chosen decimal separator; integer arithmetic keeps it fast for large files. */
+export function formatFixed(value: number, decimals: number, separator: "." | ","): string {
+  const scaled = Math.round(Math.abs(value) * 10 ** decimals);
+  const sign = value < 0 && scaled !== 0 ? "-" : "";
+  if (decimals === 0) return sign + String(scaled);
+  const digits = String(scaled).padStart(decimals + 1, "0");
+  const cut = digits.length - decimals;
+  return `${sign}${digits.slice(0, cut)}${separator}${digits.slice(cut)}`;
 }
 
 /**
@@ -119,10 +125,8 @@ function pad2(value: number): string {
 export function renderLoggerFile(layout: LoggerLayoutSpec, samples: readonly ProfileSample[], options: RenderOptions): string {
   const delimiter = DELIMITERS[layout.delimiter];
   const decimalComma = layout.decimalSeparator === ",";
-  const num = (value: number, decimals: number): string => {
-    const text = value.toFixed(decimals);
-    return decimalComma ? text.replace(".", ",") : text;
-  };
+  const separator = decimalComma ? "," : ".";
+  const num = (value: number, decimals: number): string => formatFixed(value, decimals, separator);
   const columns = layout.columns;
 
   const present: Array<{ field: FieldName; column: ColumnRef }> = [];

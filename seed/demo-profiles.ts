@@ -322,7 +322,10 @@ export function generateFlightProfile(params: FlightProfileParams, seed: number)
 
 /** A GPS glitch: one or two rows jump by hundreds to thousands of metres, then recover. */
 function addGpsSpikes(samples: ProfileSample[], count: number, rng: Prng): void {
-  const airborne = samples.flatMap((sample, index) => (sample.phase === "ascent" || sample.phase === "descent" ? [index] : []));
+  const airborne: number[] = [];
+  samples.forEach((sample, index) => {
+    if (sample.phase === "ascent" || sample.phase === "descent") airborne.push(index);
+  });
   if (airborne.length < 10) return;
   for (let spike = 0; spike < count; spike += 1) {
     const start = rng.pick(airborne);
