@@ -16,6 +16,7 @@ export default defineConfig({
         test: {
           name: "integration",
           include: ["test/integration/**/*.test.ts"],
+          globalSetup: ["test/support/postgres-global-setup.ts"],
           testTimeout: 60_000,
           hookTimeout: 120_000,
           fileParallelism: false,

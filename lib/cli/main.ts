@@ -1,0 +1,129 @@
+import fs from "node:fs";
+import path from "node:path";
+import { parseArgs } from "node:util";
+import { getDbHandle } from "../db/index.ts";
+import { applyMigrations, redactUrl } from "../db/migrate.ts";
+import { getEnv } from "../env.ts";
+import { formatIssue, ingestFlightFile, IngestFailure } from "../ingest/index.ts";
+import { loadDemoProgram } from "../../seed/load.ts";
+import { resetDatabase } from "./reset.ts";
+
+const HELP = `Lapsebank command line
+
+Usage: npm run lapsebank -- <command> [options]
+
+Commands:
+  migrate                      apply the checked-in migrations to DATABASE_URL
+  demo [--yes]                 rebuild the demo archive (wipes the database first; asks for --yes)
+  ingest <files...>            upload logger files through the same pipeline as the web
+      --school ID --site ID --layout ID [--sensor ID] [--payload ID] [--calibration ID]
+      [--launch ISO-UTC] [--visibility school|program|public] [--lenient] [--title TEXT]
+  help                         this text
+
+DATABASE_URL chooses the database: file:./data/lapsebank.db (default, SQLite) or postgres://...`;
+
+async function main(argv: string[]): Promise<number> {
+  const [command, ...rest] = argv;
+  const url = getEnv().DATABASE_URL;
+  switch (command) {
+    case "migrate":
+      applyMigrations(url);
+      console.log(`Migrations applied to ${redactUrl(url)}`);
+      return 0;
+    case "demo":
+      return runDemo(rest, url);
+    case "ingest":
+      return runIngest(rest);
+    case undefined:
+    case "help":
+    case "--help":
+      console.log(HELP);
+      return 0;
+    default:
+      console.error(`Unknown command "${command}".\n\n${HELP}`);
+      return 2;
+  }
+}
+
+async function runDemo(args: string[], url: string): Promise<number> {
+  const { values } = parseArgs({ args, options: { yes: { type: "boolean", default: false } } });
+  const { db } = getDbHandle();
+  const existing = await db.flight.count();
+  if (existing > 0 && !values.yes) {
+    console.error(`The database ${redactUrl(url)} holds ${existing} flights. \`demo --yes\` deletes everything and loads the demo archive.`);
+    return 1;
+  }
+  await resetDatabase(db);
+  const started = Date.now();
+  const report = await loadDemoProgram(db, {
+    onProgress: (done, total, fileName) => process.stdout.write(`\rLoading demo flights ${done}/${total} ${fileName.padEnd(40)}`),
+  });
+  process.stdout.write("\n");
+  console.log(`Demo archive: ${report.schools} schools, ${report.sites} sites, ${report.flights} flights in ${((Date.now() - started) / 1000).toFixed(1)} s`);
+  for (const f of report.failures) console.error(`  failed ${f.fileName}: ${f.message}`);
+  return report.failures.length ? 1 : 0;
+}
+
+async function runIngest(args: string[]): Promise<number> {
+  const { values, positionals } = parseArgs({
+    args,
+    allowPositionals: true,
+    options: {
+      school: { type: "string" }, site: { type: "string" }, layout: { type: "string" }, sensor: { type: "string" },
+      payload: { type: "string" }, calibration: { type: "string" }, launch: { type: "string" },
+      visibility: { type: "string", default: "program" }, lenient: { type: "boolean", default: false }, title: { type: "string" },
+    },
+  });
+  if (positionals.length === 0) {
+    console.error("ingest: name at least one file");
+    return 2;
+  }
+  const { db } = getDbHandle();
+  let failed = 0;
+  for (const [index, file] of positionals.entries()) {
+    const label = `[${index + 1}/${positionals.length}] ${file}`;
+    let bytes: Uint8Array;
+    try {
+      bytes = fs.readFileSync(file);
+    } catch (error) {
+      console.error(`${label}: cannot read: ${(error as Error).message}`);
+      failed++;
+      continue;
+    }
+    try {
+      const result = await ingestFlightFile(db, {
+        file: { name: path.basename(file), bytes },
+        metadata: {
+          schoolId: values.school, siteId: values.site, layoutId: values.layout, sensorId: values.sensor,
+          payloadId: values.payload, calibrationId: values.calibration, launchAtUtc: values.launch,
+          visibility: values.visibility, mode: values.lenient ? "lenient" : "strict", title: values.title,
+        },
+        actor: { userId: null, label: "cli" },
+      });
+      const tropopause = result.tropopauseAltitudeM === null ? "not found" : `${(result.tropopauseAltitudeM / 1000).toFixed(2)} km`;
+      const lapse = result.troposphericLapseRateKPerKm === null ? "n/a" : `${result.troposphericLapseRateKPerKm.toFixed(2)} K/km`;
+      console.log(`${label}: flight ${result.flightId}, tropopause ${tropopause}, lapse rate ${lapse}${result.warnings.length ? `, ${result.warnings.length} warning(s)` : ""}`);
+    } catch (error) {
+      failed++;
+      if (error instanceof IngestFailure) {
+        console.error(`${label}: refused (${error.code})`);
+        for (const issue of error.issues) console.error(`  ${formatIssue(issue)}`);
+      } else {
+        console.error(`${label}: ${(error as Error).message}`);
+      }
+    }
+  }
+  console.log(`${positionals.length - failed} ingested, ${failed} failed`);
+  return failed ? 1 : 0;
+}
+
+main(process.argv.slice(2)).then(
+  async (code) => {
+    await getDbHandle().db.$disconnect().catch(() => undefined);
+    process.exit(code);
+  },
+  (error) => {
+    console.error(error instanceof Error ? error.message : error);
+    process.exit(1);
+  },
+);

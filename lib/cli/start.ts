@@ -1,0 +1,41 @@
+import { spawn, spawnSync } from "node:child_process";
+import fs from "node:fs";
+import { getDbHandle } from "../db/index.ts";
+import { applyMigrations, redactUrl } from "../db/migrate.ts";
+import { getEnv } from "../env.ts";
+import { loadDemoProgram } from "../../seed/load.ts";
+
+/**
+ * `npm start`: apply migrations, load the demo archive when the database is empty, build the
+ * app when there is no production build yet, then serve it on PORT (default 3000).
+ */
+async function start(): Promise<void> {
+  const env = getEnv();
+  console.log(`Database: ${redactUrl(env.DATABASE_URL)}`);
+  applyMigrations(env.DATABASE_URL);
+  const { db } = getDbHandle();
+  if ((await db.school.count()) === 0 && process.env.LAPSEBANK_SKIP_DEMO !== "1") {
+    console.log("The database is empty: loading the demo archive (invented schools and flights)…");
+    const report = await loadDemoProgram(db, {
+      onProgress: (done, total) => process.stdout.write(`\r  ${done}/${total} flights`),
+    });
+    process.stdout.write("\n");
+    console.log(`  ${report.flights} demo flights loaded${report.failures.length ? `, ${report.failures.length} failed` : ""}`);
+  }
+  await db.$disconnect();
+
+  if (!fs.existsSync(".next/BUILD_ID") || process.env.LAPSEBANK_REBUILD === "1") {
+    console.log("Building the web app (first start only)…");
+    const build = spawnSync("node_modules/.bin/next", ["build"], { stdio: "inherit" });
+    if (build.status !== 0) process.exit(build.status ?? 1);
+  }
+  console.log(`Serving Lapsebank on http://localhost:${env.PORT}`);
+  const server = spawn("node_modules/.bin/next", ["start", "-p", String(env.PORT)], { stdio: "inherit" });
+  for (const signal of ["SIGINT", "SIGTERM"] as const) process.on(signal, () => server.kill(signal));
+  server.on("exit", (code) => process.exit(code ?? 0));
+}
+
+start().catch((error) => {
+  console.error(error instanceof Error ? error.message : error);
+  process.exit(1);
+});

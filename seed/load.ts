@@ -1,0 +1,89 @@
+import type { Db } from "../lib/db/index.ts";
+import { createCalibration, createLayout, createPayload, createSchool, createSensor, createSite, ingestFlightFile, IngestFailure } from "../lib/ingest/index.ts";
+import { DEFAULT_DEMO_SEED, generateDemoProgram, type DemoProgram } from "./demo-program.ts";
+
+export interface DemoLoadReport {
+  schools: number;
+  sites: number;
+  flights: number;
+  failures: Array<{ fileName: string; message: string }>;
+}
+
+/**
+ * Loads the invented demo program into an empty database through the real setup writers and
+ * the real ingest pipeline (the same code path as an upload). `onProgress` is called per flight.
+ */
+export async function loadDemoProgram(
+  db: Db,
+  options: { seed?: number; program?: DemoProgram; onProgress?: (done: number, total: number, fileName: string) => void } = {},
+): Promise<DemoLoadReport> {
+  const program = options.program ?? generateDemoProgram(options.seed ?? DEFAULT_DEMO_SEED);
+  const schoolIds = new Map<string, string>();
+  for (const school of program.schools) schoolIds.set(school.key, (await createSchool(db, { name: school.name })).id);
+  const id = (map: Map<string, string>, key: string, what: string) => {
+    const value = map.get(key);
+    if (!value) throw new Error(`Demo program refers to unknown ${what} "${key}"`);
+    return value;
+  };
+
+  const siteIds = new Map<string, string>();
+  for (const site of program.sites) {
+    const { key, schoolKey, ...rest } = site;
+    siteIds.set(key, (await createSite(db, { ...rest, schoolId: id(schoolIds, schoolKey, "school") })).id);
+  }
+  const payloadIds = new Map<string, string>();
+  const payloadSchool = new Map<string, string>();
+  for (const payload of program.payloads) {
+    const schoolId = id(schoolIds, payload.schoolKey, "school");
+    payloadIds.set(payload.key, (await createPayload(db, { schoolId, name: payload.name })).id);
+    payloadSchool.set(payload.key, schoolId);
+  }
+  const sensorIds = new Map<string, string>();
+  for (const sensor of program.sensors) {
+    const schoolId = id(payloadSchool, sensor.payloadKey, "payload");
+    const created = await createSensor(db, {
+      schoolId, serial: sensor.serial, kind: sensor.kind, timeConstantS: sensor.timeConstantS,
+      payloadId: id(payloadIds, sensor.payloadKey, "payload"), mountedFromUtc: new Date("2020-01-01T00:00:00Z"),
+    });
+    sensorIds.set(sensor.key, created.id);
+    for (const calibration of sensor.calibrations) {
+      await createCalibration(db, { sensorId: created.id, ...calibration });
+    }
+  }
+  // Layouts belong to a school: create each one for every school whose flights use it.
+  const layoutIds = new Map<string, string>();
+  for (const flight of program.flights) {
+    const mapKey = `${flight.schoolKey}/${flight.layoutKey}`;
+    if (layoutIds.has(mapKey)) continue;
+    const layout = program.layouts.find((l) => l.key === flight.layoutKey);
+    if (!layout) throw new Error(`Demo flight ${flight.key} uses unknown layout ${flight.layoutKey}`);
+    layoutIds.set(mapKey, (await createLayout(db, { schoolId: id(schoolIds, flight.schoolKey, "school"), spec: layout.spec })).id);
+  }
+
+  const failures: DemoLoadReport["failures"] = [];
+  let done = 0;
+  for (const flight of program.flights) {
+    try {
+      await ingestFlightFile(db, {
+        file: { name: flight.fileName, bytes: flight.content },
+        metadata: {
+          schoolId: id(schoolIds, flight.schoolKey, "school"),
+          siteId: id(siteIds, flight.siteKey, "site"),
+          layoutId: id(layoutIds, `${flight.schoolKey}/${flight.layoutKey}`, "layout"),
+          payloadId: id(payloadIds, flight.payloadKey, "payload"),
+          sensorId: id(sensorIds, flight.sensorKey, "sensor"),
+          launchAtUtc: flight.launchAtUtc,
+          title: flight.title,
+          visibility: "program",
+          mode: "strict",
+        },
+        actor: { userId: null, label: "demo loader" },
+      });
+    } catch (error) {
+      failures.push({ fileName: flight.fileName, message: error instanceof IngestFailure ? error.message : String(error) });
+    }
+    done++;
+    options.onProgress?.(done, program.flights.length, flight.fileName);
+  }
+  return { schools: program.schools.length, sites: program.sites.length, flights: done - failures.length, failures };
+}
