@@ -69,8 +69,9 @@ const DEG_PER_RAD = 180 / Math.PI;
  *
  * Sun position and sunrise come from suncalc (formulas of the Astronomy Answers articles, after
  * Meeus, Astronomical Algorithms): sunrise is the instant the sun's upper limb meets the horizon
- * with standard refraction (centre at −0.833°); accurate to about a minute at mid-latitudes, less
- * near the polar circles. Solar elevation is geometric (no refraction), accurate to ~0.1°.
+ * with standard refraction (centre at −0.833°); within about 1–2 minutes of the NOAA solar
+ * calculator method at mid-latitudes, less accurate near the polar circles. Solar elevation is
+ * geometric (no refraction), within ~0.15° of the NOAA method.
  * Sunrise is searched for the solar day around local noon of the local launch date.
  */
 export function describeLaunchTime(launchAtUtc: Date, site: LaunchSite): LaunchTimeDescription {
