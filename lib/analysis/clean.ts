@@ -1,0 +1,231 @@
+/**
+ * From raw logger rows to a cleaned, time-ordered sample series in typed arrays: time ordering
+ * and de-duplication, calibration, altitude choice (GPS, else pressure), missing and
+ * out-of-range rows, GPS jumps and temperature spikes. Every removal is counted.
+ */
+import { calibrateReading } from "./calibration";
+import { altitudeJumpMask, hampelSpikeMask } from "./filters";
+import { integrateHypsometricAltitudesM } from "./altitude";
+import { standardAtmosphereAltitudeForPressureM } from "./standard-atmosphere";
+import type { AnalysisParameters, QcReport, QcWarning, RawSample, SiteInfo, TemperatureCalibration } from "./types";
+
+/** Plausible ranges for a balloon sounding [P]. */
+export const TEMPERATURE_RANGE_K = { min: 150, max: 350 } as const;
+export const ALTITUDE_RANGE_M = { min: -500, max: 60000 } as const;
+const PRESSURE_RANGE_HPA = { min: 0.1, max: 1100 } as const;
+/** Hampel threshold floor, K: smaller departures are not treated as spikes [P]. */
+const HAMPEL_MIN_THRESHOLD_K = 0.3;
+
+/** Cleaned samples, time-ordered; NaN marks a missing pressure or humidity. */
+export interface CleanSeries {
+  n: number;
+  elapsedS: Float64Array;
+  altitudeM: Float64Array;
+  temperatureK: Float64Array;
+  pressureHpa: Float64Array;
+  relativeHumidityPct: Float64Array;
+  sourceLine: Float64Array;
+}
+
+export interface CleanResult {
+  series: CleanSeries;
+  removed: QcReport["removed"];
+  timeOrder: QcReport["timeOrder"];
+  flags: string[];
+  warnings: QcWarning[];
+  hasPressure: boolean;
+  hasHumidity: boolean;
+}
+
+const num = (v: number | null | undefined): number => (typeof v === "number" && Number.isFinite(v) ? v : Number.NaN);
+
+function compact(series: CleanSeries, keep: Uint8Array): CleanSeries {
+  let m = 0;
+  for (let i = 0; i < series.n; i++) if (keep[i] === 1) m++;
+  const pick = (a: Float64Array) => {
+    const out = new Float64Array(m);
+    let k = 0;
+    for (let i = 0; i < series.n; i++) if (keep[i] === 1) out[k++] = a[i] as number;
+    return out;
+  };
+  return {
+    n: m,
+    elapsedS: pick(series.elapsedS),
+    altitudeM: pick(series.altitudeM),
+    temperatureK: pick(series.temperatureK),
+    pressureHpa: pick(series.pressureHpa),
+    relativeHumidityPct: pick(series.relativeHumidityPct),
+    sourceLine: pick(series.sourceLine),
+  };
+}
+
+/**
+ * Cleans raw rows (never mutated). Order of steps: drop rows without a finite time; sort by time
+ * (ties by source line, so input order never matters) and keep the first row of each duplicated
+ * time; calibrate; take GPS altitude when plausible, else altitude from pressure (hypsometric
+ * integration anchored at the first pressure row, or the standard atmosphere); drop rows still
+ * missing temperature or altitude, then rows outside 150–350 K or −500 m–60 km; drop GPS jumps;
+ * drop temperature spikes (Hampel).
+ */
+export function cleanSamples(
+  samples: readonly RawSample[],
+  calibration: TemperatureCalibration,
+  site: SiteInfo,
+  params: AnalysisParameters,
+): CleanResult {
+  const removed: QcReport["removed"] = {
+    preLaunch: 0, postLanding: 0, duplicateTimes: 0, gpsJumps: 0, temperatureSpikes: 0, missingValues: 0, outOfRange: 0,
+  };
+  const flags: string[] = [];
+  const warnings: QcWarning[] = [];
+
+  const timed: number[] = [];
+  for (let i = 0; i < samples.length; i++) {
+    if (Number.isFinite((samples[i] as RawSample).elapsedS)) timed.push(i);
+    else removed.missingValues++;
+  }
+  let monotonic = true;
+  for (let k = 1; k < timed.length; k++) {
+    if ((samples[timed[k] as number] as RawSample).elapsedS < (samples[timed[k - 1] as number] as RawSample).elapsedS) {
+      monotonic = false;
+      break;
+    }
+  }
+  const order = timed.slice().sort((a, b) => {
+    const sa = samples[a] as RawSample;
+    const sb = samples[b] as RawSample;
+    return sa.elapsedS - sb.elapsedS || num(sa.sourceLine) - num(sb.sourceLine) || a - b;
+  });
+  if (!monotonic) {
+    flags.push("sorted-times");
+    warnings.push({ code: "sorted-times", message: "Rows were not in time order and have been sorted by elapsed time." });
+  }
+  const unique: number[] = [];
+  for (const idx of order) {
+    const prev = unique[unique.length - 1];
+    if (prev !== undefined && (samples[prev] as RawSample).elapsedS === (samples[idx] as RawSample).elapsedS) removed.duplicateTimes++;
+    else unique.push(idx);
+  }
+  if (removed.duplicateTimes > 0) {
+    warnings.push({ code: "duplicate-times", message: `${removed.duplicateTimes} rows repeated an earlier time and were dropped (the first row of each time is kept).` });
+  }
+
+  const n = unique.length;
+  const elapsedS = new Float64Array(n);
+  const gpsM = new Float64Array(n);
+  const temperatureK = new Float64Array(n);
+  const pressureHpa = new Float64Array(n);
+  const rhPct = new Float64Array(n);
+  const sourceLine = new Float64Array(n);
+  let failedCalibration = 0;
+  let hasPressure = false;
+  let hasHumidity = false;
+  let gpsCount = 0;
+  for (let k = 0; k < n; k++) {
+    const s = samples[unique[k] as number] as RawSample;
+    elapsedS[k] = s.elapsedS;
+    sourceLine[k] = Number.isFinite(s.sourceLine) ? s.sourceLine : 0;
+    const raw = num(s.rawTemperature);
+    if (raw === raw) {
+      const r = calibrateReading(calibration, raw);
+      temperatureK[k] = r.ok ? r.temperatureK : Number.NaN;
+      if (!r.ok) failedCalibration++;
+    } else {
+      temperatureK[k] = Number.NaN;
+    }
+    const p = num(s.pressureHpa);
+    pressureHpa[k] = p >= PRESSURE_RANGE_HPA.min && p <= PRESSURE_RANGE_HPA.max ? p : Number.NaN;
+    if (pressureHpa[k] === pressureHpa[k]) hasPressure = true;
+    const rh = num(s.relativeHumidityPct);
+    rhPct[k] = rh >= 0 && rh <= 110 ? Math.min(rh, 100) : Number.NaN;
+    if (rhPct[k] === rhPct[k]) hasHumidity = true;
+    const z = num(s.altitudeM);
+    gpsM[k] = z >= ALTITUDE_RANGE_M.min && z <= ALTITUDE_RANGE_M.max ? z : Number.NaN;
+    if (gpsM[k] === gpsM[k]) gpsCount++;
+  }
+  if (failedCalibration > 0) {
+    warnings.push({ code: "calibration-failures", message: `${failedCalibration} raw temperature readings could not be converted by the calibration and count as missing.` });
+  }
+
+  const altitudeM = Float64Array.from(gpsM);
+  if (hasPressure && gpsCount < n) {
+    let anchor = -1;
+    for (let k = 0; k < n; k++) {
+      if ((pressureHpa[k] as number) > 0 && (temperatureK[k] as number) > 0) {
+        anchor = k;
+        break;
+      }
+    }
+    let anchorM = site.elevationM;
+    if (anchor >= 0) {
+      const gps = gpsM[anchor] as number;
+      const standardM = standardAtmosphereAltitudeForPressureM(pressureHpa[anchor] as number);
+      if (gps === gps) anchorM = gps;
+      else if (standardM !== null && standardM > site.elevationM + 1000) {
+        anchorM = standardM;
+        warnings.push({ code: "started-aloft", message: "The first pressure reading is far below surface pressure; pressure altitudes start from the standard atmosphere." });
+      }
+    }
+    const hypsometric = integrateHypsometricAltitudesM(pressureHpa, temperatureK, rhPct, anchor, anchorM);
+    let fromPressure = 0;
+    for (let k = 0; k < n; k++) {
+      if (altitudeM[k] === altitudeM[k]) continue;
+      let z = hypsometric[k] as number;
+      if (z !== z && pressureHpa[k] === pressureHpa[k]) z = standardAtmosphereAltitudeForPressureM(pressureHpa[k] as number) ?? Number.NaN;
+      if (z === z) {
+        altitudeM[k] = z;
+        fromPressure++;
+      }
+    }
+    if (fromPressure > 0) {
+      flags.push("altitude-from-pressure");
+      warnings.push({ code: "altitude-from-pressure", message: `${fromPressure} rows had no plausible GPS altitude; their altitude was derived from pressure.` });
+    }
+  }
+
+  const keep = new Uint8Array(n);
+  for (let k = 0; k < n; k++) {
+    const s = samples[unique[k] as number] as RawSample;
+    const t = temperatureK[k] as number;
+    const z = altitudeM[k] as number;
+    const rawZ = num(s.altitudeM);
+    const tOut = t === t && (t < TEMPERATURE_RANGE_K.min || t > TEMPERATURE_RANGE_K.max);
+    const zOut = z !== z && rawZ === rawZ && (rawZ < ALTITUDE_RANGE_M.min || rawZ > ALTITUDE_RANGE_M.max);
+    if (tOut || zOut) removed.outOfRange++;
+    else if (t !== t || z !== z) removed.missingValues++;
+    else keep[k] = 1;
+  }
+  let series = compact({ n, elapsedS, altitudeM, temperatureK, pressureHpa, relativeHumidityPct: rhPct, sourceLine }, keep);
+  if (removed.outOfRange > 0) {
+    warnings.push({ code: "out-of-range", message: `${removed.outOfRange} rows had a temperature outside 150–350 K or an altitude outside −500 m to 60 km and were dropped.` });
+  }
+  if (removed.missingValues > 0) {
+    warnings.push({ code: "missing-values", message: `${removed.missingValues} rows lacked a usable time, temperature or altitude and were dropped.` });
+  }
+
+  if (series.n >= 3) {
+    const jumps = altitudeJumpMask(series.elapsedS, series.altitudeM, params.maxVerticalSpeedMPerS, params.hampelWindowSamples);
+    const keepJ = new Uint8Array(series.n);
+    for (let i = 0; i < series.n; i++) {
+      if (jumps[i] === 1) removed.gpsJumps++;
+      else keepJ[i] = 1;
+    }
+    if (removed.gpsJumps > 0) {
+      series = compact(series, keepJ);
+      warnings.push({ code: "gps-jumps", message: `${removed.gpsJumps} rows with implausible altitude jumps (faster than ${params.maxVerticalSpeedMPerS} m/s) were dropped.` });
+    }
+  }
+  if (series.n >= 3) {
+    const spikes = hampelSpikeMask(series.temperatureK, params.hampelWindowSamples, params.hampelThresholdSigmas, HAMPEL_MIN_THRESHOLD_K);
+    const keepS = new Uint8Array(series.n);
+    for (let i = 0; i < series.n; i++) {
+      if (spikes[i] === 1) removed.temperatureSpikes++;
+      else keepS[i] = 1;
+    }
+    if (removed.temperatureSpikes > 0) {
+      series = compact(series, keepS);
+      warnings.push({ code: "temperature-spikes", message: `${removed.temperatureSpikes} temperature spikes were dropped by the Hampel filter.` });
+    }
+  }
+  return { series, removed, timeOrder: monotonic ? "monotonic" : "sorted", flags, warnings, hasPressure, hasHumidity };
+}

@@ -1,0 +1,270 @@
+/**
+ * Layer statistics from binned profile levels: surface-based and elevated inversions, the
+ * tropospheric lapse rate, the stratospheric gradient and fixed or caller-chosen altitude bands.
+ */
+import { DRY_AIR_SPECIFIC_HEAT_J_PER_KG_K, STANDARD_GRAVITY_M_PER_S2 } from "./constants";
+import { fitOrdinaryLeastSquares, theilSenSlope } from "./regression";
+import { classifyStability, moistAdiabaticLapseRateKPerKm } from "./stability";
+import { standardAtmosphereAt } from "./standard-atmosphere";
+import type { LayerKind, LayerStat, Phase, ProfileLevel, QcWarning, TropopauseResult } from "./types";
+
+/** A profile point used in layer fits: a binned level or the surface observation. */
+export interface ProfilePoint {
+  altitudeM: number;
+  temperatureK: number;
+  pressureHpa: number | null;
+}
+
+const DRY_ADIABATIC_K_PER_KM = (STANDARD_GRAVITY_M_PER_S2 / DRY_AIR_SPECIFIC_HEAT_J_PER_KG_K) * 1000;
+
+/**
+ * Builds a LayerStat from the points of one layer: OLS lapse rate −dT/dz (K/km) with its
+ * standard error and r², the Theil–Sen lapse rate, mean T, mean p (measured when every point has
+ * a pressure, else USSA76 at the mean altitude), Γd = g0/cp and Γm at mean T and p (AMS Glossary),
+ * and the stability class. Null when fewer than 2 points or no altitude spread.
+ */
+export function buildLayerStat(
+  kind: LayerKind,
+  phase: Phase,
+  baseM: number,
+  topM: number,
+  points: readonly ProfilePoint[],
+  strengthK: number | null,
+): LayerStat | null {
+  const n = points.length;
+  if (n < 2) return null;
+  const xKm = new Float64Array(n);
+  const y = new Float64Array(n);
+  let sumT = 0;
+  let sumZ = 0;
+  let sumP = 0;
+  let allPressure = true;
+  for (let i = 0; i < n; i++) {
+    const p = points[i] as ProfilePoint;
+    xKm[i] = p.altitudeM / 1000;
+    y[i] = p.temperatureK;
+    sumT += p.temperatureK;
+    sumZ += p.altitudeM;
+    if (p.pressureHpa !== null && p.pressureHpa > 0) sumP += p.pressureHpa;
+    else allPressure = false;
+  }
+  const fit = fitOrdinaryLeastSquares(xKm, y);
+  if (!fit) return null;
+  const theilSen = theilSenSlope(xKm, y);
+  const meanTemperatureK = sumT / n;
+  const standard = standardAtmosphereAt(sumZ / n);
+  const meanPressureHpa = allPressure ? sumP / n : (standard?.pressureHpa ?? 1013.25);
+  const lapseRateKPerKm = -fit.slope;
+  const moist = moistAdiabaticLapseRateKPerKm(meanTemperatureK, meanPressureHpa);
+  return {
+    kind,
+    phase,
+    baseM,
+    topM,
+    lapseRateKPerKm: lapseRateKPerKm + 0,
+    lapseRateStdErrKPerKm: fit.slopeStdErr,
+    rSquared: fit.rSquared,
+    theilSenLapseRateKPerKm: theilSen === null ? null : -theilSen + 0,
+    levelCount: n,
+    strengthK,
+    meanTemperatureK,
+    meanPressureHpa,
+    pressureFromStandardAtmosphere: !allPressure,
+    dryAdiabaticLapseRateKPerKm: DRY_ADIABATIC_K_PER_KM,
+    moistAdiabaticLapseRateKPerKm: moist,
+    stability: classifyStability(lapseRateKPerKm, DRY_ADIABATIC_K_PER_KM, moist),
+  };
+}
+
+export interface InversionLayer {
+  /** Indices into the point list of the base and top. */
+  baseIndex: number;
+  topIndex: number;
+  baseM: number;
+  topM: number;
+  strengthK: number;
+  surfaceBased: boolean;
+}
+
+/**
+ * Inversion layers in an ascending point list: runs of levels where temperature rises with
+ * height, merged when separated by a non-inversion stretch no thicker than mergeGapM (Kahl 1990;
+ * Zhang et al. 2011 merge at 100 m), kept when T(top) − T(base) ≥ minStrengthK. The first layer
+ * is surface-based when it starts at the lowest point.
+ */
+export function detectInversions(points: readonly ProfilePoint[], mergeGapM: number, minStrengthK: number): InversionLayer[] {
+  const runs: Array<{ base: number; top: number }> = [];
+  for (let i = 0; i + 1 < points.length; i++) {
+    const warming = (points[i + 1] as ProfilePoint).temperatureK > (points[i] as ProfilePoint).temperatureK;
+    if (!warming) continue;
+    const last = runs[runs.length - 1];
+    if (last && last.top === i) last.top = i + 1;
+    else runs.push({ base: i, top: i + 1 });
+  }
+  const merged: Array<{ base: number; top: number }> = [];
+  for (const run of runs) {
+    const last = merged[merged.length - 1];
+    if (last) {
+      const gapM = (points[run.base] as ProfilePoint).altitudeM - (points[last.top] as ProfilePoint).altitudeM;
+      if (gapM <= mergeGapM) {
+        last.top = run.top;
+        continue;
+      }
+    }
+    merged.push({ ...run });
+  }
+  const layers: InversionLayer[] = [];
+  for (const m of merged) {
+    const base = points[m.base] as ProfilePoint;
+    const top = points[m.top] as ProfilePoint;
+    const strengthK = top.temperatureK - base.temperatureK;
+    if (strengthK < minStrengthK) continue;
+    layers.push({
+      baseIndex: m.base,
+      topIndex: m.top,
+      baseM: base.altitudeM,
+      topM: top.altitudeM,
+      strengthK,
+      surfaceBased: m.base === 0,
+    });
+  }
+  return layers;
+}
+
+export type BandLapseRateResult = { layer: LayerStat; reason: null } | { layer: null; reason: string };
+
+function inferBinSizeM(levels: readonly ProfileLevel[]): number {
+  const widths = levels.map((l) => l.topM - l.baseM).filter((w) => Number.isFinite(w) && w > 0).sort((a, b) => a - b);
+  return widths.length > 0 ? (widths[widths.length >> 1] as number) : 100;
+}
+
+/**
+ * Lapse rate (OLS, K/km) over a caller-chosen band baseM–topM (m above mean sea level) of one
+ * phase's levels. When groundM is given and the band starts below it, the fit starts at the
+ * ground; baseM/topM in the result stay as requested so bands group across flights. The levels
+ * must reach within one bin of both ends, have no gap of more than two empty bins and number at
+ * least 3; otherwise layer is null and reason says why.
+ */
+export function computeBandLapseRate(
+  levels: readonly ProfileLevel[],
+  baseM: number,
+  topM: number,
+  options: { groundM?: number; phase?: Phase; kind?: LayerKind } = {},
+): BandLapseRateResult {
+  if (!Number.isFinite(baseM) || !Number.isFinite(topM) || topM <= baseM) {
+    return { layer: null, reason: "the band needs finite limits with top above base" };
+  }
+  const binM = inferBinSizeM(levels);
+  const effectiveBaseM = options.groundM !== undefined && Number.isFinite(options.groundM) ? Math.max(baseM, options.groundM) : baseM;
+  if (topM - effectiveBaseM < binM) return { layer: null, reason: "the band lies below the ground or is thinner than one bin" };
+  const inBand = levels
+    .filter((l) => l.altitudeM >= effectiveBaseM && l.altitudeM <= topM && Number.isFinite(l.temperatureK))
+    .slice()
+    .sort((a, b) => a.altitudeM - b.altitudeM);
+  const lowest = inBand[0];
+  const highest = inBand[inBand.length - 1];
+  if (!lowest || !highest || inBand.length < 3) return { layer: null, reason: `fewer than 3 levels between ${baseM} m and ${topM} m` };
+  if (lowest.altitudeM - effectiveBaseM > binM) return { layer: null, reason: `the profile does not reach down to ${Math.round(effectiveBaseM)} m` };
+  if (topM - highest.altitudeM > binM) return { layer: null, reason: `the profile does not reach up to ${topM} m` };
+  for (let i = 1; i < inBand.length; i++) {
+    if ((inBand[i] as ProfileLevel).altitudeM - (inBand[i - 1] as ProfileLevel).altitudeM > 3 * binM) {
+      return { layer: null, reason: "a data gap of more than two bins lies inside the band" };
+    }
+  }
+  const layer = buildLayerStat(options.kind ?? "band", options.phase ?? lowest.phase, baseM, topM, inBand, null);
+  return layer ? { layer, reason: null } : { layer: null, reason: "the levels do not determine a lapse rate" };
+}
+
+export interface PhaseLayers {
+  layers: LayerStat[];
+  surfaceInversion: { depthM: number; strengthK: number } | null;
+  warnings: QcWarning[];
+}
+
+/**
+ * All layers of one phase: surface-based inversion, elevated inversions (below the first
+ * tropopause when one was found), the troposphere from the top of the surface inversion (or the
+ * ground) to the first tropopause (or the profile top, with a warning), the stratosphere above
+ * the tropopause, and the fixed bands. `surface` is the near-ground observation (launch or
+ * landing altitude and temperature), used as the lowest point when it lies below the first level.
+ */
+export function computePhaseLayers(args: {
+  phase: Phase;
+  levels: readonly ProfileLevel[];
+  surface: ProfilePoint | null;
+  tropopause: TropopauseResult;
+  fixedBandsM: ReadonlyArray<{ baseM: number; topM: number }>;
+  binSizeM: number;
+  inversionMergeGapM: number;
+  inversionMinStrengthK: number;
+}): PhaseLayers {
+  const { phase, tropopause } = args;
+  const warnings: QcWarning[] = [];
+  const layers: LayerStat[] = [];
+  const levels = args.levels.slice().sort((a, b) => a.altitudeM - b.altitudeM);
+  const first = levels[0];
+  const last = levels[levels.length - 1];
+  if (!first || !last || levels.length < 3) {
+    return { layers, surfaceInversion: null, warnings: [{ code: "few-levels", message: `The ${phase} has fewer than 3 altitude levels; no layers were computed.` }] };
+  }
+  const points: ProfilePoint[] = [];
+  const surface = args.surface;
+  if (surface && first.altitudeM - surface.altitudeM >= args.binSizeM / 4) points.push(surface);
+  for (const l of levels) points.push(l);
+  const groundM = (points[0] as ProfilePoint).altitudeM;
+  const tropopauseM = tropopause.status === "found" ? tropopause.altitudeM : null;
+
+  const inversionPoints = tropopauseM === null ? points : points.filter((p) => p.altitudeM <= tropopauseM);
+  const inversions = detectInversions(inversionPoints, args.inversionMergeGapM, args.inversionMinStrengthK);
+  let surfaceInversion: PhaseLayers["surfaceInversion"] = null;
+  let troposphereBaseM = groundM;
+  for (const inv of inversions) {
+    const stat = buildLayerStat(
+      inv.surfaceBased ? "surface-inversion" : "elevated-inversion",
+      phase,
+      inv.baseM,
+      inv.topM,
+      inversionPoints.slice(inv.baseIndex, inv.topIndex + 1),
+      inv.strengthK,
+    );
+    if (stat) layers.push(stat);
+    if (inv.surfaceBased) {
+      surfaceInversion = { depthM: inv.topM - inv.baseM, strengthK: inv.strengthK };
+      troposphereBaseM = inv.topM;
+    }
+  }
+
+  let troposphereTopM = last.altitudeM;
+  if (tropopauseM !== null) troposphereTopM = tropopauseM;
+  else if (tropopause.status === "undetermined" && tropopause.candidateAltitudeM !== null) {
+    troposphereTopM = tropopause.candidateAltitudeM;
+    warnings.push({
+      code: "troposphere-to-candidate",
+      message: `The ${phase} tropopause is undetermined; the tropospheric lapse rate stops at the unconfirmed candidate at ${Math.round(troposphereTopM)} m.`,
+    });
+  } else {
+    warnings.push({
+      code: "troposphere-to-top",
+      message: `No ${phase} tropopause was found; the tropospheric lapse rate uses the whole profile up to ${Math.round(troposphereTopM)} m.`,
+    });
+  }
+  const tropPoints = points.filter((p) => p.altitudeM >= troposphereBaseM && p.altitudeM <= troposphereTopM);
+  const troposphere = tropPoints.length >= 3 ? buildLayerStat("troposphere", phase, troposphereBaseM, troposphereTopM, tropPoints, null) : null;
+  if (troposphere) layers.push(troposphere);
+  else warnings.push({ code: "no-troposphere-fit", message: `Too few ${phase} levels for a tropospheric lapse rate.` });
+
+  if (tropopauseM !== null) {
+    const stratPoints = levels.filter((l) => l.altitudeM > tropopauseM);
+    const lastStrat = stratPoints[stratPoints.length - 1];
+    if (stratPoints.length >= 3 && lastStrat) {
+      const stat = buildLayerStat("stratosphere", phase, tropopauseM, lastStrat.altitudeM, stratPoints, null);
+      if (stat) layers.push(stat);
+    }
+  }
+
+  for (const band of args.fixedBandsM) {
+    const r = computeBandLapseRate(levels, band.baseM, band.topM, { groundM, phase });
+    if (r.layer) layers.push(r.layer);
+  }
+  return { layers, surfaceInversion, warnings };
+}

@@ -1,0 +1,184 @@
+/** Straight-line fits for lapse rates: ordinary least squares and the Theil–Sen estimator. */
+
+export interface LinearFit {
+  slope: number;
+  intercept: number;
+  /** Standard error of the slope, same unit as slope; null when n < 3 or the residual variance is undefined. */
+  slopeStdErr: number | null;
+  /** Coefficient of determination; null when y has no variance. */
+  rSquared: number | null;
+  n: number;
+}
+
+/**
+ * Ordinary least-squares line y = a + b·x with the textbook slope standard error
+ * SE(b) = sqrt(SSres/(n − 2) / Sxx). Pairs with a non-finite coordinate are skipped.
+ * Returns null when fewer than 2 usable points or x has no spread.
+ */
+export function fitOrdinaryLeastSquares(x: ArrayLike<number>, y: ArrayLike<number>): LinearFit | null {
+  const len = Math.min(x.length, y.length);
+  let n = 0;
+  let sumX = 0;
+  let sumY = 0;
+  for (let i = 0; i < len; i++) {
+    const xi = x[i] as number;
+    const yi = y[i] as number;
+    if (!Number.isFinite(xi) || !Number.isFinite(yi)) continue;
+    n++;
+    sumX += xi;
+    sumY += yi;
+  }
+  if (n < 2) return null;
+  const meanX = sumX / n;
+  const meanY = sumY / n;
+  let sxx = 0;
+  let sxy = 0;
+  let syy = 0;
+  for (let i = 0; i < len; i++) {
+    const xi = x[i] as number;
+    const yi = y[i] as number;
+    if (!Number.isFinite(xi) || !Number.isFinite(yi)) continue;
+    const dx = xi - meanX;
+    const dy = yi - meanY;
+    sxx += dx * dx;
+    sxy += dx * dy;
+    syy += dy * dy;
+  }
+  if (!(sxx > 0)) return null;
+  const slope = sxy / sxx;
+  const intercept = meanY - slope * meanX;
+  const ssRes = Math.max(syy - slope * sxy, 0);
+  const slopeStdErr = n > 2 ? Math.sqrt(ssRes / (n - 2) / sxx) : null;
+  const rSquared = syy > 0 ? Math.min(Math.max(1 - ssRes / syy, 0), 1) : null;
+  return {
+    slope,
+    intercept,
+    slopeStdErr: slopeStdErr !== null && Number.isFinite(slopeStdErr) ? slopeStdErr : null,
+    rSquared,
+    n,
+  };
+}
+
+/** Median of a typed array's first `count` entries (sorts that part in place). */
+function medianInPlace(values: Float64Array, count: number): number {
+  const part = values.subarray(0, count);
+  part.sort();
+  const mid = count >> 1;
+  return count % 2 === 1 ? (part[mid] as number) : ((part[mid - 1] as number) + (part[mid] as number)) / 2;
+}
+
+/**
+ * Theil–Sen slope: the median of the slopes of all point pairs with distinct x
+ * (Sen 1968, J. Am. Stat. Assoc. 63). Null when no such pair exists. O(n²) pairs.
+ */
+export function theilSenSlope(x: ArrayLike<number>, y: ArrayLike<number>): number | null {
+  const len = Math.min(x.length, y.length);
+  const xs: number[] = [];
+  const ys: number[] = [];
+  for (let i = 0; i < len; i++) {
+    const xi = x[i] as number;
+    const yi = y[i] as number;
+    if (Number.isFinite(xi) && Number.isFinite(yi)) {
+      xs.push(xi);
+      ys.push(yi);
+    }
+  }
+  const n = xs.length;
+  if (n < 2) return null;
+  const slopes = new Float64Array((n * (n - 1)) / 2);
+  let count = 0;
+  for (let i = 0; i < n; i++) {
+    const xi = xs[i] as number;
+    const yi = ys[i] as number;
+    for (let j = i + 1; j < n; j++) {
+      const dx = (xs[j] as number) - xi;
+      if (dx === 0) continue;
+      slopes[count++] = ((ys[j] as number) - yi) / dx;
+    }
+  }
+  if (count === 0) return null;
+  const m = medianInPlace(slopes, count);
+  return Number.isFinite(m) ? m : null;
+}
+
+/**
+ * Linear least squares for an over-determined system A·c ≈ b (rows × cols, row-major design)
+ * by Householder QR, which stays accurate for the badly scaled designs of calibration fits
+ * (e.g. 1, ln R, (ln R)³). Returns null when A is rank-deficient.
+ */
+export function solveLeastSquares(design: readonly (readonly number[])[], rhs: readonly number[]): number[] | null {
+  const m = design.length;
+  const first = design[0];
+  if (!first || rhs.length !== m) return null;
+  const n = first.length;
+  if (n === 0 || m < n) return null;
+  // Column scaling first so the rank test is independent of units.
+  const scale = new Float64Array(n);
+  for (let j = 0; j < n; j++) {
+    let s = 0;
+    for (let i = 0; i < m; i++) s = Math.max(s, Math.abs(design[i]?.[j] ?? 0));
+    scale[j] = s > 0 ? s : 1;
+  }
+  const a: Float64Array[] = [];
+  for (let i = 0; i < m; i++) {
+    const row = new Float64Array(n);
+    for (let j = 0; j < n; j++) {
+      const v = design[i]?.[j] ?? Number.NaN;
+      row[j] = v / (scale[j] as number);
+    }
+    a.push(row);
+  }
+  const b = Float64Array.from(rhs);
+  for (let i = 0; i < m; i++) {
+    const row = a[i] as Float64Array;
+    for (let j = 0; j < n; j++) if (!Number.isFinite(row[j] as number)) return null;
+    if (!Number.isFinite(b[i] as number)) return null;
+  }
+  const diag = new Float64Array(n);
+  for (let k = 0; k < n; k++) {
+    let norm = 0;
+    for (let i = k; i < m; i++) {
+      const v = (a[i] as Float64Array)[k] as number;
+      norm += v * v;
+    }
+    norm = Math.sqrt(norm);
+    if (norm < 1e-12) return null;
+    const akk = (a[k] as Float64Array)[k] as number;
+    const alpha = akk > 0 ? -norm : norm;
+    // Householder vector v = x − alpha·e1 stored in column k.
+    (a[k] as Float64Array)[k] = akk - alpha;
+    let vnorm2 = 0;
+    for (let i = k; i < m; i++) {
+      const v = (a[i] as Float64Array)[k] as number;
+      vnorm2 += v * v;
+    }
+    if (vnorm2 > 0) {
+      for (let j = k + 1; j < n; j++) {
+        let dot = 0;
+        for (let i = k; i < m; i++) dot += ((a[i] as Float64Array)[k] as number) * ((a[i] as Float64Array)[j] as number);
+        const f = (2 * dot) / vnorm2;
+        for (let i = k; i < m; i++) {
+          const row = a[i] as Float64Array;
+          row[j] = (row[j] as number) - f * (row[k] as number);
+        }
+      }
+      let dot = 0;
+      for (let i = k; i < m; i++) dot += ((a[i] as Float64Array)[k] as number) * (b[i] as number);
+      const f = (2 * dot) / vnorm2;
+      for (let i = k; i < m; i++) b[i] = (b[i] as number) - f * ((a[i] as Float64Array)[k] as number);
+    }
+    diag[k] = alpha;
+  }
+  const maxDiag = Math.max(...Array.from(diag, Math.abs));
+  const c = new Float64Array(n);
+  for (let k = n - 1; k >= 0; k--) {
+    const dk = diag[k] as number;
+    if (Math.abs(dk) <= 1e-10 * maxDiag) return null;
+    let s = b[k] as number;
+    for (let j = k + 1; j < n; j++) s -= ((a[k] as Float64Array)[j] as number) * (c[j] as number);
+    c[k] = s / dk;
+  }
+  const out: number[] = [];
+  for (let j = 0; j < n; j++) out.push((c[j] as number) / (scale[j] as number));
+  return out.every(Number.isFinite) ? out : null;
+}

@@ -1,0 +1,162 @@
+/**
+ * WMO (1957) lapse-rate tropopause, first and second.
+ * Source: WMO definition (International Meteorological Vocabulary): the first tropopause is the
+ * lowest level at which the lapse rate decreases to 2 K/km or less, provided the average lapse
+ * rate between this level and all higher levels within 2 km does not exceed 2 K/km. If above it
+ * the average lapse rate between any level and all higher levels within 1 km exceeds 3 K/km, a
+ * second tropopause is defined by the same criterion, within or above that 1 km layer.
+ */
+import type { ProfileLevel, TropopauseResult } from "./types";
+
+/** WMO thresholds, K/km. */
+const TROPOPAUSE_LAPSE_K_PER_KM = 2;
+const SECOND_TROPOPAUSE_SEPARATION_K_PER_KM = 3;
+const WINDOW_M = 2000;
+const SEPARATION_WINDOW_M = 1000;
+
+interface Profile {
+  z: Float64Array;
+  t: Float64Array;
+  p: Float64Array;
+  binM: number;
+  /** Spacing between consecutive levels beyond which data are missing (more than 2 empty bins). */
+  maxSpacingM: number;
+}
+
+type Search =
+  | { status: "found"; index: number; altitudeM: number; temperatureK: number; pressureHpa: number | null }
+  | { status: "undetermined"; reason: string; candidateAltitudeM: number | null }
+  | { status: "not-found" };
+
+function toProfile(levels: readonly ProfileLevel[]): Profile {
+  const usable = levels
+    .filter((l) => Number.isFinite(l.altitudeM) && Number.isFinite(l.temperatureK))
+    .slice()
+    .sort((a, b) => a.altitudeM - b.altitudeM);
+  const widths = usable.map((l) => l.topM - l.baseM).filter((w) => w > 0).sort((a, b) => a - b);
+  const binM = widths.length > 0 ? (widths[widths.length >> 1] as number) : 100;
+  return {
+    z: Float64Array.from(usable, (l) => l.altitudeM),
+    t: Float64Array.from(usable, (l) => l.temperatureK),
+    p: Float64Array.from(usable, (l) => (l.pressureHpa !== null && l.pressureHpa > 0 ? l.pressureHpa : Number.NaN)),
+    binM,
+    maxSpacingM: 3 * binM,
+  };
+}
+
+/** Lapse rate −dT/dz between levels i and j, K/km. */
+function lapse(pr: Profile, i: number, j: number): number {
+  return (((pr.t[i] as number) - (pr.t[j] as number)) / ((pr.z[j] as number) - (pr.z[i] as number))) * 1000;
+}
+
+function interpolateAt(pr: Profile, altitudeM: number): { temperatureK: number; pressureHpa: number | null } {
+  const n = pr.z.length;
+  let i = 0;
+  while (i + 2 < n && (pr.z[i + 1] as number) < altitudeM) i++;
+  const z0 = pr.z[i] as number;
+  const z1 = pr.z[Math.min(i + 1, n - 1)] as number;
+  const f = z1 > z0 ? Math.min(Math.max((altitudeM - z0) / (z1 - z0), 0), 1) : 0;
+  const t0 = pr.t[i] as number;
+  const t1 = pr.t[Math.min(i + 1, n - 1)] as number;
+  const p0 = pr.p[i] as number;
+  const p1 = pr.p[Math.min(i + 1, n - 1)] as number;
+  const pressureHpa = p0 > 0 && p1 > 0 ? Math.exp(Math.log(p0) + f * (Math.log(p1) - Math.log(p0))) : null;
+  return { temperatureK: t0 + f * (t1 - t0), pressureHpa };
+}
+
+/**
+ * Lowest level k ≥ startIndex (and at or above floorM) meeting the 2 K/km rule. Every pair
+ * (k, j) with z_j within 2 km above z_k is tested, not only the 2 km mean [P]. The reported
+ * altitude interpolates the 2 K/km crossing between the mid-points of the layers below and above
+ * level k.
+ */
+function searchWmo(pr: Profile, startIndex: number, floorM: number): Search {
+  const n = pr.z.length;
+  const top = pr.z[n - 1] as number;
+  for (let k = Math.max(startIndex, 0); k + 1 < n; k++) {
+    const zk = pr.z[k] as number;
+    if (zk < floorM) continue;
+    if (lapse(pr, k, k + 1) > TROPOPAUSE_LAPSE_K_PER_KM) continue;
+    const windowTop = zk + WINDOW_M;
+    let rejected = false;
+    let gap: string | null = null;
+    for (let j = k + 1; j < n && (pr.z[j] as number) <= windowTop; j++) {
+      if ((pr.z[j] as number) - (pr.z[j - 1] as number) > pr.maxSpacingM) {
+        gap = `a data gap from ${Math.round(pr.z[j - 1] as number)} m to ${Math.round(pr.z[j] as number)} m lies within 2 km above the candidate`;
+        break;
+      }
+      if (lapse(pr, k, j) > TROPOPAUSE_LAPSE_K_PER_KM) {
+        rejected = true;
+        break;
+      }
+    }
+    if (rejected) continue;
+    if (gap !== null) return { status: "undetermined", reason: gap, candidateAltitudeM: zk };
+    if (top < windowTop - pr.binM) {
+      return {
+        status: "undetermined",
+        reason: `the profile ends at ${Math.round(top)} m, inside the 2 km test window above the candidate at ${Math.round(zk)} m`,
+        candidateAltitudeM: zk,
+      };
+    }
+    if (k > 0 && zk - (pr.z[k - 1] as number) > pr.maxSpacingM) {
+      return { status: "undetermined", reason: `a data gap below the candidate at ${Math.round(zk)} m hides where the lapse rate fell`, candidateAltitudeM: zk };
+    }
+    let altitudeM = zk;
+    if (k > 0) {
+      const below = lapse(pr, k - 1, k);
+      const above = lapse(pr, k, k + 1);
+      if (below > TROPOPAUSE_LAPSE_K_PER_KM && below > above) {
+        const m0 = ((pr.z[k - 1] as number) + zk) / 2;
+        const m1 = (zk + (pr.z[k + 1] as number)) / 2;
+        altitudeM = m0 + ((below - TROPOPAUSE_LAPSE_K_PER_KM) / (below - above)) * (m1 - m0);
+      }
+    }
+    const at = interpolateAt(pr, altitudeM);
+    return { status: "found", index: k, altitudeM, temperatureK: at.temperatureK, pressureHpa: at.pressureHpa };
+  }
+  return { status: "not-found" };
+}
+
+function publicResult(s: Search): TropopauseResult {
+  if (s.status === "found") return { status: "found", altitudeM: s.altitudeM, temperatureK: s.temperatureK, pressureHpa: s.pressureHpa };
+  return s;
+}
+
+/**
+ * First and second WMO lapse-rate tropopause of one profile (levels in any order; altitudes in
+ * m, temperatures in K). Only levels at or above floorM are searched so that surface inversions
+ * are not taken for a tropopause [P]. "undetermined" when a data gap (more than two empty bins)
+ * or the profile top falls inside the test window of the lowest candidate.
+ */
+export function findTropopauses(
+  levels: readonly ProfileLevel[],
+  floorM: number,
+): { first: TropopauseResult; second: TropopauseResult } {
+  const pr = toProfile(levels);
+  const n = pr.z.length;
+  if (n < 3) return { first: { status: "not-found" }, second: { status: "not-found" } };
+  const first = searchWmo(pr, 0, floorM);
+  if (first.status !== "found") {
+    const second: TropopauseResult =
+      first.status === "undetermined"
+        ? { status: "undetermined", reason: "the first tropopause is undetermined", candidateAltitudeM: null }
+        : { status: "not-found" };
+    return { first: publicResult(first), second };
+  }
+  const top = pr.z[n - 1] as number;
+  for (let i = first.index + 1; i + 1 < n; i++) {
+    const zi = pr.z[i] as number;
+    if (top < zi + SEPARATION_WINDOW_M - pr.binM) break;
+    let exceeds = true;
+    for (let j = i + 1; j < n && (pr.z[j] as number) <= zi + SEPARATION_WINDOW_M; j++) {
+      if ((pr.z[j] as number) - (pr.z[j - 1] as number) > pr.maxSpacingM || lapse(pr, i, j) <= SECOND_TROPOPAUSE_SEPARATION_K_PER_KM) {
+        exceeds = false;
+        break;
+      }
+    }
+    if (!exceeds) continue;
+    return { first: publicResult(first), second: publicResult(searchWmo(pr, i + 1, floorM)) };
+  }
+  return { first: publicResult(first), second: { status: "not-found" } };
+}
