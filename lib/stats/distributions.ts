@@ -9,10 +9,16 @@ function assertDf(df: number): void {
   if (!(df > 0)) throw new StatsInputError(`degrees of freedom must be > 0, got ${df}`);
 }
 
+const T_CDF_LIMIT = 1e150;
+
 /** P(T ≤ x) for Student's t with `df` degrees of freedom (normal when df is Infinity). */
 export function tCdf(x: number, df: number): number {
   assertDf(df);
-  return df === Infinity ? jStat.normal.cdf(x, 0, 1) : jStat.studentt.cdf(x, df);
+  if (df === Infinity) return jStat.normal.cdf(x, 0, 1);
+  // jstat squares x internally; beyond ~1e154 that overflows to NaN. At |x| = 1e150 the tail is
+  // already below 1e-150 for any df ≥ 1, so clamping changes nothing that matters.
+  const clamped = Math.max(-T_CDF_LIMIT, Math.min(T_CDF_LIMIT, x));
+  return jStat.studentt.cdf(clamped, df);
 }
 
 /** Quantile of Student's t: the x with P(T ≤ x) = p (normal when df is Infinity). */

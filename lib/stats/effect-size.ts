@@ -61,7 +61,11 @@ export function hedgesG(a: readonly number[], b: readonly number[]): HedgesGResu
   }
   const correction = 1 - 3 / (4 * total - 9);
   const g = correction * d;
-  const standardError = correction * Math.sqrt(total / (nA * nB) + d ** 2 / (2 * total));
+  const standardError = finiteOrNull(
+    correction * Math.sqrt(total / (nA * nB) + d ** 2 / (2 * total)),
+    "standardError",
+    warnings,
+  );
   const z = normalQuantile(0.975);
   return {
     ...none,
@@ -69,10 +73,13 @@ export function hedgesG(a: readonly number[], b: readonly number[]): HedgesGResu
     correction,
     g,
     standardError,
-    ci95: {
-      low: finiteOrNull(g - z * standardError, "ci95 low", warnings),
-      high: finiteOrNull(g + z * standardError, "ci95 high", warnings),
-      level: 0.95,
-    },
+    ci95:
+      standardError === null
+        ? none.ci95
+        : {
+            low: finiteOrNull(g - z * standardError, "ci95 low", warnings),
+            high: finiteOrNull(g + z * standardError, "ci95 high", warnings),
+            level: 0.95,
+          },
   };
 }

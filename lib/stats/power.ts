@@ -53,8 +53,12 @@ export function minimumDetectableDifference(input: MinimumDetectableDifferenceIn
   const zAlpha = normalQuantile(alternative === "two-sided" ? 1 - alpha / 2 : 1 - alpha);
   const zPower = normalQuantile(power);
   const standardError = nB === undefined ? sd * Math.sqrt(1 / nA) : sd * Math.sqrt(1 / nA + 1 / nB);
+  const difference = (zAlpha + zPower) * standardError;
+  if (!Number.isFinite(difference)) {
+    throw new StatsInputError(`sd ${sd} is too large for a finite detectable difference`);
+  }
   return {
-    difference: (zAlpha + zPower) * standardError,
+    difference,
     standardError,
     zAlpha,
     zPower,
