@@ -85,13 +85,19 @@ export function cleanSamples(
     else removed.missingValues++;
   }
   let monotonic = true;
+  let strictlyIncreasing = true;
   for (let k = 1; k < timed.length; k++) {
-    if ((samples[timed[k] as number] as RawSample).elapsedS < (samples[timed[k - 1] as number] as RawSample).elapsedS) {
+    const prev = (samples[timed[k - 1] as number] as RawSample).elapsedS;
+    const cur = (samples[timed[k] as number] as RawSample).elapsedS;
+    if (cur <= prev) strictlyIncreasing = false;
+    if (cur < prev) {
       monotonic = false;
       break;
     }
   }
-  const order = timed.slice().sort((a, b) => {
+  // Sorting (with ties broken by source line) only when needed keeps the common case fast and
+  // makes the kept row of a duplicated time independent of the input order.
+  const order = strictlyIncreasing ? timed : timed.slice().sort((a, b) => {
     const sa = samples[a] as RawSample;
     const sb = samples[b] as RawSample;
     return sa.elapsedS - sb.elapsedS || num(sa.sourceLine) - num(sb.sourceLine) || a - b;

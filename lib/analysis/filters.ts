@@ -1,3 +1,5 @@
+import { medianInPlace } from "./regression";
+
 /**
  * Robust glitch filters on time series held in typed arrays: a sliding median, the Hampel
  * spike filter and a GPS altitude-jump filter. Inputs are never modified.
@@ -41,8 +43,9 @@ export function rollingMedian(values: Float64Array, halfWindow: number): Float64
   for (let i = 0; i < n; i++) {
     const newHi = Math.min(n - 1, i + h);
     const newLo = Math.max(0, i - h);
-    while (hi < newHi) insert(values[++hi] as number);
+    // Remove before inserting: the buffer holds at most 2h + 1 values.
     while (lo < newLo) remove(values[lo++] as number);
+    while (hi < newHi) insert(values[++hi] as number);
     const mid = size >> 1;
     out[i] = size % 2 === 1 ? (window[mid] as number) : ((window[mid - 1] as number) + (window[mid] as number)) / 2;
   }
@@ -79,10 +82,7 @@ export function hampelSpikeMask(
     const count = hi - lo + 1;
     const med = medians[i] as number;
     for (let j = lo; j <= hi; j++) scratch[j - lo] = Math.abs((values[j] as number) - med);
-    const part = scratch.subarray(0, count);
-    part.sort();
-    const mid = count >> 1;
-    const mad = count % 2 === 1 ? (part[mid] as number) : ((part[mid - 1] as number) + (part[mid] as number)) / 2;
+    const mad = medianInPlace(scratch, count);
     if (deviation > Math.max(thresholdSigmas * MAD_TO_SIGMA * mad, minThreshold)) mask[i] = 1;
   }
   return mask;
