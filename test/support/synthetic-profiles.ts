@@ -3,7 +3,7 @@
  * through a given temperature profile, sampled at a fixed rate, with seeded noise, optional
  * first-order sensor lag, hydrostatic pressure and injected GPS spikes. Deterministic.
  */
-import type { RawSample, SiteInfo, TemperatureCalibration } from "../../lib/analysis/types";
+import type { ProfileLevel, RawSample, SiteInfo, TemperatureCalibration } from "../../lib/analysis/types";
 import { standardAtmosphereAt } from "../../lib/analysis/standard-atmosphere";
 
 /** Mulberry32: a small seeded PRNG returning uniform numbers in [0, 1). */
@@ -140,4 +140,40 @@ export function syntheticFlight(options: SyntheticFlightOptions): RawSample[] {
     });
   }
   return rows;
+}
+
+/** Noise-free profile levels: each bin's temperature is the mean of 20 points spread through it. */
+export function levelsFromProfile(
+  temperatureAtAltitudeK: (altitudeM: number) => number,
+  fromM: number,
+  toM: number,
+  binSizeM = 100,
+  phase: ProfileLevel["phase"] = "ascent",
+): ProfileLevel[] {
+  const levels: ProfileLevel[] = [];
+  for (let base = fromM; base + binSizeM <= toM + 1e-9; base += binSizeM) {
+    let sum = 0;
+    for (let k = 0; k < 20; k++) sum += temperatureAtAltitudeK(base + ((k + 0.5) * binSizeM) / 20);
+    levels.push({
+      phase, baseM: base, topM: base + binSizeM, altitudeM: base + binSizeM / 2, sampleCount: 20,
+      temperatureK: sum / 20, temperatureSdK: null, pressureHpa: null, relativeHumidityPct: null,
+    });
+  }
+  return levels;
+}
+
+/** Piecewise-linear temperature profile through (altitude m, temperature K) nodes. */
+export function piecewiseProfile(nodes: ReadonlyArray<readonly [number, number]>): (altitudeM: number) => number {
+  return (z: number) => {
+    const first = nodes[0];
+    const last = nodes[nodes.length - 1];
+    if (!first || !last) return Number.NaN;
+    if (z <= first[0]) return first[1];
+    for (let i = 0; i + 1 < nodes.length; i++) {
+      const a = nodes[i] as readonly [number, number];
+      const b = nodes[i + 1] as readonly [number, number];
+      if (z <= b[0]) return a[1] + ((b[1] - a[1]) * (z - a[0])) / (b[0] - a[0]);
+    }
+    return last[1];
+  };
 }

@@ -1,0 +1,90 @@
+import { describe, expect, test } from "vitest";
+import { computeBandLapseRate, computePhaseLayers, detectInversions } from "../../lib/analysis/layers";
+import { DEFAULT_ANALYSIS_PARAMETERS } from "../../lib/analysis/types";
+import { levelsFromProfile, piecewiseProfile } from "../support/synthetic-profiles";
+
+const params = DEFAULT_ANALYSIS_PARAMETERS;
+
+describe("inversions (Kahl 1990 definitions, REFERENCE.md §5)", () => {
+  test("surface-based and elevated inversions with strength T(top) − T(base)", () => {
+    const pts = [
+      [0, 270], [100, 272], [200, 274], [300, 273], [400, 271], [500, 269], [600, 270.5], [700, 272], [800, 271],
+    ].map(([altitudeM, temperatureK]) => ({ altitudeM: altitudeM as number, temperatureK: temperatureK as number, pressureHpa: null }));
+    const inv = detectInversions(pts, 0, 0.3);
+    expect(inv).toHaveLength(2);
+    expect(inv[0]).toMatchObject({ surfaceBased: true, baseM: 0, topM: 200, strengthK: 4 });
+    expect(inv[1]).toMatchObject({ surfaceBased: false, baseM: 500, topM: 700, strengthK: 3 });
+  });
+
+  test("layers separated by a thin non-inversion stretch merge; weak ones are dropped", () => {
+    // [P] merge gaps ≤ 100 m (REFERENCE.md §5)
+    const pts = [[0, 270], [100, 271], [200, 272], [300, 271.8], [400, 273], [500, 272], [600, 271], [700, 271.2]]
+      .map(([altitudeM, temperatureK]) => ({ altitudeM: altitudeM as number, temperatureK: temperatureK as number, pressureHpa: null }));
+    const inv = detectInversions(pts, 100, 0.3);
+    expect(inv).toHaveLength(1);
+    expect(inv[0]).toMatchObject({ baseM: 0, topM: 400, strengthK: 3 });
+  });
+});
+
+describe("band lapse rate", () => {
+  const f = piecewiseProfile([[0, 290], [10000, 225]]); // 6.5 K/km
+  const levels = levelsFromProfile(f, 0, 10000);
+
+  test("a covered band gives its lapse rate", () => {
+    const r = computeBandLapseRate(levels, 2000, 5000);
+    expect(r.layer?.lapseRateKPerKm).toBeCloseTo(6.5, 9); // [D] linear profile
+    expect(r.layer?.rSquared).toBeCloseTo(1, 9);
+    expect(r.layer?.kind).toBe("band");
+  });
+
+  test("uncovered bands return null with a reason", () => {
+    expect(computeBandLapseRate(levels, 8000, 15000)).toMatchObject({ layer: null, reason: expect.stringMatching(/up to/) });
+    expect(computeBandLapseRate(levels.filter((l) => l.altitudeM > 3000), 2000, 5000)).toMatchObject({ layer: null, reason: expect.stringMatching(/down to/) });
+    expect(computeBandLapseRate(levels.filter((l) => l.altitudeM < 3000 || l.altitudeM > 3500), 2000, 5000).reason).toMatch(/gap/);
+    expect(computeBandLapseRate(levels, 5000, 4000).layer).toBeNull();
+  });
+
+  test("a band starting below ground is fitted from the ground up", () => {
+    const elevated = levelsFromProfile(f, 600, 10000);
+    expect(computeBandLapseRate(elevated, 0, 2000).layer).toBeNull();
+    const r = computeBandLapseRate(elevated, 0, 2000, { groundM: 600 });
+    expect(r.layer?.baseM).toBe(0);
+    expect(r.layer?.lapseRateKPerKm).toBeCloseTo(6.5, 9);
+  });
+});
+
+describe("phase layers", () => {
+  test("stability, adiabatic rates and standard-atmosphere pressure flags", () => {
+    const f = piecewiseProfile([[0, 290], [11000, 218.5], [20000, 218.5]]);
+    const res = computePhaseLayers({
+      phase: "ascent",
+      levels: levelsFromProfile(f, 0, 20000),
+      surface: null,
+      tropopause: { status: "found", altitudeM: 11000, temperatureK: 218.5, pressureHpa: null },
+      fixedBandsM: params.fixedBandsM,
+      binSizeM: 100,
+      inversionMergeGapM: 100,
+      inversionMinStrengthK: 0.3,
+    });
+    const trop = res.layers.find((l) => l.kind === "troposphere");
+    expect(trop?.lapseRateKPerKm).toBeCloseTo(6.5, 6);
+    expect(trop?.dryAdiabaticLapseRateKPerKm).toBeCloseTo(9.768, 3); // REFERENCE.md §3 [D] g0/1004
+    expect(trop?.pressureFromStandardAtmosphere).toBe(true);
+    expect(trop?.stability).toBe(trop && trop.lapseRateKPerKm > trop.moistAdiabaticLapseRateKPerKm ? "conditionally-unstable" : "absolutely-stable");
+    const strat = res.layers.find((l) => l.kind === "stratosphere");
+    expect(strat?.lapseRateKPerKm).toBeCloseTo(0, 6);
+    expect(strat?.stability).toBe("absolutely-stable");
+    expect(res.layers.filter((l) => l.kind === "band")).toHaveLength(3);
+    expect(res.surfaceInversion).toBeNull();
+  });
+
+  test("without a tropopause the troposphere runs to the top with a warning", () => {
+    const f = piecewiseProfile([[0, 290], [8000, 238]]);
+    const res = computePhaseLayers({
+      phase: "ascent", levels: levelsFromProfile(f, 0, 8000), surface: null, tropopause: { status: "not-found" },
+      fixedBandsM: [], binSizeM: 100, inversionMergeGapM: 100, inversionMinStrengthK: 0.3,
+    });
+    expect(res.warnings.map((w) => w.code)).toContain("troposphere-to-top");
+    expect(res.layers.find((l) => l.kind === "troposphere")?.topM).toBeCloseTo(7950, 6);
+  });
+});
