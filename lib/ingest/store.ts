@@ -216,6 +216,12 @@ async function chooseCalibration(
   ]);
 }
 
+/**
+ * Flags that describe a flight rather than a quality problem: they don't mark the flight as
+ * QC-flagged (climatology can exclude QC-flagged flights).
+ */
+export const INFORMATIONAL_FLAGS = new Set(["no-landing", "lag-corrected", "no-tropopause", "tropopause-undetermined", "altitude-from-pressure"]);
+
 /** Finite number or null: nothing non-finite ever reaches the database. */
 function finiteOrNull(value: number | null | undefined): number | null {
   return value !== null && value !== undefined && Number.isFinite(value) ? value : null;
@@ -273,7 +279,7 @@ export async function writeAnalysisRun(
   });
   const s = analysis.summary;
   const ascentLevels = analysis.levels.filter((l) => l.phase === "ascent");
-  const qcFlagged = analysis.qc.flags.length > 0 || args.prepared.skippedRows.length > 0;
+  const qcFlagged = analysis.qc.flags.some((f) => !INFORMATIONAL_FLAGS.has(f)) || args.prepared.skippedRows.length > 0;
   await tx.flightSummary.create({
     data: {
       runId: run.id, flightId: args.flightId, isCurrent: true, schoolId: args.schoolId, siteId: args.siteId,
