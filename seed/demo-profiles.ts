@@ -245,7 +245,7 @@ export function generateFlightProfile(params: FlightProfileParams, seed: number)
       if (altitudeM >= params.burstAltitudeM) {
         altitudeM = params.burstAltitudeM;
         if (!params.descent) {
-          pushSample(elapsedS);
+          if (elapsedS % intervalS === 0) pushSample(elapsedS);
           break;
         }
         phase = "descent";

@@ -304,7 +304,9 @@ export function generateDemoProgram(seed: number = DEFAULT_DEMO_SEED): DemoProgr
     const sunriseMs = SunCalc.getTimes(localNoon.toJSDate(), site.latitudeDeg, site.longitudeDeg).sunrise.getTime();
     const latestMs = localNoon.set({ hour: 15, minute: 45 }).toMillis();
     const wantedMs = sunriseMs + hoursAfterSunriseFor(plan.slot, rng) * 3_600_000;
-    const launchMs = Math.round(Math.min(wantedMs, latestMs) / 60_000) * 60_000;
+    // Short winter days: an afternoon launch that would fall after 15:45 moves into early afternoon.
+    const earlierMs = latestMs - rng.uniform(0, 2.5) * 3_600_000;
+    const launchMs = Math.round((wantedMs > latestMs ? earlierMs : wantedMs) / 60_000) * 60_000;
     const hoursAfterSunrise = (launchMs - sunriseMs) / 3_600_000;
 
     const payload = rng.pick(PAYLOADS.filter((p) => p.schoolKey === site.schoolKey));
