@@ -25,8 +25,9 @@ function runFixture(files: Record<string, string>): { status: number | null; lin
   );
   for (const [name, text] of Object.entries(files)) fs.writeFileSync(path.join(dir, name), text);
   // A nested vitest must not think it runs inside this one's worker.
-  const env = Object.fromEntries(Object.entries(process.env).filter(([key]) => !key.startsWith("VITEST") && key !== "NODE_OPTIONS"));
-  const result = spawnSync(vitestBin, ["run", "--root", dir], { cwd: dir, env: { ...env, NO_COLOR: "1", CI: "1" }, encoding: "utf8", timeout: 60_000 });
+  const env: NodeJS.ProcessEnv = { ...process.env, NO_COLOR: "1", CI: "1" };
+  for (const key of Object.keys(env)) if (key.startsWith("VITEST") || key === "NODE_OPTIONS") delete env[key];
+  const result = spawnSync(vitestBin, ["run", "--root", dir], { cwd: dir, env, encoding: "utf8", timeout: 60_000 });
   return { status: result.status, stdout: result.stdout, lines: result.stdout.split("\n").map((line) => line.trimEnd()) };
 }
 
