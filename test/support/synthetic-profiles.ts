@@ -62,24 +62,28 @@ export interface SyntheticFlightOptions {
   gpsSpikes?: ReadonlyArray<{ index: number; offsetM: number }>;
 }
 
-/** Hydrostatic pressure from a temperature profile on a 10 m grid from 0 m (1013.25 hPa). */
+/**
+ * Hydrostatic pressure from a temperature profile on a 10 m grid from 0 m (1013.25 hPa), with
+ * gravity falling off as g0·(r0/(r0 + z))² so that z is geometric altitude, as GPS reports it.
+ */
 function pressureProfile(temperatureAtAltitudeK: (z: number) => number, groundM: number, topM: number): (z: number) => number {
   const stepM = 10;
   const lo = Math.min(0, groundM);
   const count = Math.ceil((topM - lo) / stepM) + 2;
   const lnP = new Float64Array(count);
-  const g = 9.80665;
   const r = 8314.32 / 28.9644;
+  const r0 = 6356766;
+  const gAt = (z: number) => 9.80665 * (r0 / (r0 + z)) ** 2;
   // Integrate from 0 m upward and downward so that p(0) = 1013.25 hPa.
   const zeroIndex = Math.round(-lo / stepM);
   lnP[zeroIndex] = Math.log(1013.25);
   for (let i = zeroIndex + 1; i < count; i++) {
     const zMid = lo + (i - 0.5) * stepM;
-    lnP[i] = (lnP[i - 1] as number) - (g * stepM) / (r * temperatureAtAltitudeK(zMid));
+    lnP[i] = (lnP[i - 1] as number) - (gAt(zMid) * stepM) / (r * temperatureAtAltitudeK(zMid));
   }
   for (let i = zeroIndex - 1; i >= 0; i--) {
     const zMid = lo + (i + 0.5) * stepM;
-    lnP[i] = (lnP[i + 1] as number) + (g * stepM) / (r * temperatureAtAltitudeK(zMid));
+    lnP[i] = (lnP[i + 1] as number) + (gAt(zMid) * stepM) / (r * temperatureAtAltitudeK(zMid));
   }
   return (z: number) => {
     const x = (z - lo) / stepM;
