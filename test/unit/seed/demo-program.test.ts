@@ -62,12 +62,12 @@ describe("determinism", () => {
     // Deep equality of everything but the bytes (compared above, far faster as buffers).
     const withoutBytes = (p: DemoProgram) => ({ ...p, flights: p.flights.map((f) => ({ ...f, content: f.content.byteLength })) });
     expect(withoutBytes(again)).toEqual(withoutBytes(program));
-  });
+  }, 60_000);
 
   test("another seed gives other flights", () => {
     const other = generateDemoProgram(99);
     expect(other.flights.map((f) => f.launchAtUtc)).not.toEqual(program.flights.map((f) => f.launchAtUtc));
-  });
+  }, 60_000);
 });
 
 describe("size and speed", () => {
