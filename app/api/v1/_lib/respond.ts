@@ -1,0 +1,67 @@
+import "server-only";
+import type { z } from "zod";
+import { IngestFailure, type IngestIssue } from "@/lib/ingest";
+
+/** The one error shape of every /api/v1 response. */
+export interface ApiErrorBody {
+  error: {
+    code: string;
+    message: string;
+    issues?: IngestIssue[];
+    existingFlightId?: string;
+  };
+}
+
+export function jsonOk<T>(data: T, status = 200, headers?: HeadersInit): Response {
+  return Response.json(data, { status, headers: { "Cache-Control": "no-store", ...headers } });
+}
+
+export function jsonError(status: number, code: string, message: string, extra: Omit<ApiErrorBody["error"], "code" | "message"> = {}): Response {
+  const body: ApiErrorBody = { error: { code, message, ...extra } };
+  return Response.json(body, { status, headers: { "Cache-Control": "no-store" } });
+}
+
+export function notFoundError(what = "Flight"): Response {
+  return jsonError(404, "not-found", `${what} not found, or not visible to you`);
+}
+
+/** 400 for query or form fields that do not validate; the message names each field. */
+export function validationError(error: z.ZodError): Response {
+  const message = error.issues.map((i) => `${i.path.join(".") || "request"}: ${i.message}`).join("; ");
+  return jsonError(400, "invalid-request", message);
+}
+
+/** Status for an ingest failure: duplicate 409, oversized 413, everything else about the file or its metadata 422. */
+export function statusOfIngestFailure(failure: IngestFailure): number {
+  if (failure.code === "duplicate") return 409;
+  if (failure.code === "too-large") return 413;
+  return 422;
+}
+
+export function ingestFailureResponse(failure: IngestFailure): Response {
+  const message = failure.code === "duplicate"
+    ? "This file was already uploaded for this school"
+    : failure.issues.length === 1 ? (failure.issues[0]?.message ?? failure.code) : `${failure.issues.length} problems found in the upload`;
+  return jsonError(statusOfIngestFailure(failure), failure.code, message, {
+    issues: failure.issues,
+    ...(failure.existingFlightId ? { existingFlightId: failure.existingFlightId } : {}),
+  });
+}
+
+/** Wraps a handler so an unexpected error still answers in the one error shape (details go to the server log). */
+export function withErrors<A extends unknown[]>(handler: (...args: A) => Promise<Response>): (...args: A) => Promise<Response> {
+  return async (...args: A) => {
+    try {
+      return await handler(...args);
+    } catch (error) {
+      if (error instanceof IngestFailure) return ingestFailureResponse(error);
+      console.error("[api/v1]", error);
+      return jsonError(500, "internal", "Something went wrong on the server; the error has been logged");
+    }
+  };
+}
+
+/** Absolute URL of a path on this server, from the incoming request. */
+export function absoluteUrl(request: Request, path: string): string {
+  return new URL(path, request.url).toString();
+}

@@ -1,0 +1,77 @@
+import { archiveFilterSchema, searchParamsToRecord } from "@/lib/query/archive-filter";
+import { getFlight, listFlights } from "@/lib/query/flights";
+import { ingestFlightFile } from "@/lib/ingest";
+import { getDb } from "@/lib/db";
+import { getEnv } from "@/lib/env";
+import { getViewer } from "@/app/_lib/viewer";
+import { absoluteUrl, jsonError, jsonOk, validationError, withErrors } from "../_lib/respond";
+
+export const runtime = "nodejs";
+
+/** GET /api/v1/flights?school=&site=&from=&to=&season=&sort=&page=&pageSize= */
+export const GET = withErrors(async (request: Request) => {
+  const parsed = archiveFilterSchema.safeParse(searchParamsToRecord(new URL(request.url).searchParams));
+  if (!parsed.success) return validationError(parsed.error);
+  const result = await listFlights(await getViewer(), parsed.data);
+  return jsonOk({
+    flights: result.rows.map((row) => ({ ...row, url: absoluteUrl(request, `/flights/${row.id}`), apiUrl: absoluteUrl(request, `/api/v1/flights/${row.id}`) })),
+    paging: { page: result.page, pageSize: result.pageSize, total: result.total, pageCount: Math.ceil(result.total / result.pageSize) },
+  });
+});
+
+/** POST /api/v1/flights (multipart/form-data): `file` plus the upload metadata fields. */
+export const POST = withErrors(async (request: Request) => {
+  const maxBytes = getEnv().LAPSEBANK_MAX_UPLOAD_MB * 1024 * 1024;
+  const declared = Number(request.headers.get("content-length") ?? "0");
+  // Multipart framing adds a little; refuse early only when the body is clearly over the limit.
+  if (declared > maxBytes + 64 * 1024) {
+    return jsonError(413, "too-large", `The upload is ${(declared / 1048576).toFixed(1)} MB; the limit is ${getEnv().LAPSEBANK_MAX_UPLOAD_MB} MB per file`);
+  }
+  const contentType = request.headers.get("content-type") ?? "";
+  if (!contentType.startsWith("multipart/form-data")) {
+    return jsonError(400, "invalid-request", "Send multipart/form-data with a `file` field and the metadata fields (schoolId, siteId, layoutId, …)");
+  }
+  let form: FormData;
+  try {
+    form = await request.formData();
+  } catch {
+    return jsonError(400, "invalid-request", "The multipart body could not be read");
+  }
+  const file = form.get("file");
+  if (!(file instanceof File)) return jsonError(400, "invalid-request", "The `file` field is missing or is not a file");
+  const metadata: Record<string, string> = {};
+  for (const [key, value] of form.entries()) {
+    if (key !== "file" && typeof value === "string") metadata[key] = value;
+  }
+  const bytes = new Uint8Array(await file.arrayBuffer());
+  const result = await ingestFlightFile(getDb(), { file: { name: file.name || "upload.txt", bytes }, metadata, actor: { userId: null, label: "api" } });
+  const detail = await getFlight(await getViewer(), result.flightId);
+  const summary = detail?.currentRun?.summary ?? null;
+  return jsonOk(
+    {
+      flight: { id: result.flightId, url: absoluteUrl(request, `/flights/${result.flightId}`), title: result.title, launchAtUtc: result.launchAtUtc.toISOString() },
+      summary: summary && {
+        season: summary.season,
+        seasonName: summary.seasonName,
+        localHour: summary.localHour,
+        surfaceTemperatureK: summary.surfaceTemperatureK,
+        troposphericLapseRateKPerKm: summary.troposphericLapseRateKPerKm,
+        troposphericLapseRateStdErrKPerKm: summary.troposphericLapseRateStdErrKPerKm,
+        tropopauseAltitudeM: summary.tropopauseAltitudeM,
+        tropopauseTemperatureK: summary.tropopauseTemperatureK,
+        tropopauseStatus: summary.tropopauseStatus,
+        secondTropopauseAltitudeM: summary.secondTropopauseAltitudeM,
+        hasSurfaceInversion: summary.hasSurfaceInversion,
+        surfaceInversionDepthM: summary.surfaceInversionDepthM,
+        surfaceInversionStrengthK: summary.surfaceInversionStrengthK,
+        burstAltitudeM: summary.burstAltitudeM,
+        maxAltitudeM: summary.maxAltitudeM,
+        qcFlagged: summary.qcFlagged,
+      },
+      warnings: result.warnings,
+      skippedRowCount: result.skippedRowCount,
+    },
+    201,
+    { Location: absoluteUrl(request, `/api/v1/flights/${result.flightId}`) },
+  );
+});

@@ -1,0 +1,113 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { archiveFilterSchema, searchParamsToRecord, type ArchiveFilter } from "@/lib/query/archive-filter";
+import { listFlights } from "@/lib/query/flights";
+import { listSchoolsAndSites } from "@/lib/query/setup";
+import { getViewer } from "@/app/_lib/viewer";
+import { formatKmValue, formatLocalHour, formatNumber, formatSeason, formatUtc } from "@/app/_lib/format";
+import { ArchiveFilterForm } from "./_components/archive-filter-form";
+import { Pager } from "./_components/pager";
+
+export const metadata: Metadata = { title: "Archive" };
+
+type SearchParams = Promise<Record<string, string | string[] | undefined>>;
+
+/**
+ * Parses the URL filter; a field that does not validate is dropped (and reported) so one bad
+ * value does not throw away the rest of the filter.
+ */
+function parseFilter(record: Record<string, string>): { filter: ArchiveFilter; problems: string[] } {
+  const problems: string[] = [];
+  const input = { ...record };
+  for (let attempt = 0; attempt < 10; attempt++) {
+    const parsed = archiveFilterSchema.safeParse(input);
+    if (parsed.success) return { filter: parsed.data, problems };
+    for (const issue of parsed.error.issues) {
+      const key = String(issue.path[0] ?? "");
+      problems.push(`${key || "filter"}: ${issue.message} (ignored)`);
+      delete input[key];
+    }
+  }
+  return { filter: archiveFilterSchema.parse({}), problems };
+}
+
+const FILTER_KEYS = ["school", "site", "from", "to", "season"] as const;
+
+export default async function ArchivePage({ searchParams }: { searchParams: SearchParams }) {
+  const record = searchParamsToRecord(await searchParams);
+  const { filter, problems } = parseFilter(record);
+  const viewer = await getViewer();
+  const [result, choices] = await Promise.all([listFlights(viewer, filter), listSchoolsAndSites()]);
+  const filtered = FILTER_KEYS.some((key) => filter[key] !== undefined);
+  const pageCount = Math.max(1, Math.ceil(result.total / result.pageSize));
+  const firstRow = result.total === 0 ? 0 : (result.page - 1) * result.pageSize + 1;
+  const lastRow = Math.min(result.total, result.page * result.pageSize);
+
+  return (
+    <>
+      <h1>Archive</h1>
+      <ArchiveFilterForm values={record} schools={choices.schools} sites={choices.sites} />
+      {problems.length > 0 && (
+        <div className="notice notice-warn" role="status">
+          Some filter values were not understood:
+          <ul>{problems.map((p) => <li key={p}>{p}</li>)}</ul>
+        </div>
+      )}
+      {result.total === 0 ? (
+        filtered ? (
+          <p className="notice">No flights match this filter. <Link href="/flights">Clear the filter</Link>.</p>
+        ) : (
+          <div className="notice">
+            <p><strong>The archive is empty.</strong></p>
+            <p><Link className="button" href="/upload">Upload a flight</Link> to start it.</p>
+          </div>
+        )
+      ) : (
+        <>
+          <p className="muted" role="status">
+            Flights {firstRow}–{lastRow} of {result.total}{filtered ? " matching the filter" : ""}.
+          </p>
+          <div className="table-wrap" role="region" aria-label="Flights" tabIndex={0}>
+            <table>
+              <thead>
+                <tr>
+                  <th scope="col">Launch (UTC / local)</th>
+                  <th scope="col" className="title-cell">Title</th>
+                  <th scope="col">School</th>
+                  <th scope="col">Site</th>
+                  <th scope="col">Season</th>
+                  <th scope="col" className="num">Tropopause (km)</th>
+                  <th scope="col" className="num">Lapse rate, troposphere (K/km)</th>
+                  <th scope="col" className="num">Max altitude (km)</th>
+                  <th scope="col">Surface inversion</th>
+                  <th scope="col">QC</th>
+                </tr>
+              </thead>
+              <tbody>
+                {result.rows.map((row) => (
+                  <tr key={row.id}>
+                    <td className="nowrap">
+                      {formatUtc(row.launchAtUtc)}
+                      <br />
+                      <span className="muted small">{formatLocalHour(row.localHour)} local</span>
+                    </td>
+                    <td className="title-cell"><Link href={`/flights/${row.id}`}>{row.title}</Link>{row.synthetic && <span className="muted small"> (demo)</span>}</td>
+                    <td>{row.schoolName}</td>
+                    <td>{row.siteName}</td>
+                    <td className="nowrap">{formatSeason(row.season, row.seasonName)}</td>
+                    <td className="num">{formatKmValue(row.tropopauseAltitudeM, 2)}</td>
+                    <td className="num">{formatNumber(row.troposphericLapseRateKPerKm, 2)}</td>
+                    <td className="num">{formatKmValue(row.maxAltitudeM, 1)}</td>
+                    <td>{row.hasSurfaceInversion === null ? "—" : row.hasSurfaceInversion ? "yes" : "no"}</td>
+                    <td>{row.qcFlagged ? <span className="flag flag-warn">flagged</span> : <span className="flag flag-ok">ok</span>}</td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          </div>
+          <Pager record={record} page={result.page} pageCount={pageCount} />
+        </>
+      )}
+    </>
+  );
+}

@@ -1,0 +1,15 @@
+// Uploads through the Upload page's server action carry the whole file; allow the configured
+// upload limit (LAPSEBANK_MAX_UPLOAD_MB, default 50) plus room for the form fields. The ingest
+// pipeline itself refuses oversized files with a clear message.
+const maxUploadMb = Number(process.env.LAPSEBANK_MAX_UPLOAD_MB) > 0 ? Number(process.env.LAPSEBANK_MAX_UPLOAD_MB) : 50;
+
+/** @type {import('next').NextConfig} */
+const nextConfig = {
+  poweredByHeader: false,
+  serverExternalPackages: ["better-sqlite3", "pg", "@prisma/adapter-better-sqlite3", "@prisma/adapter-pg", "csv-parse"],
+  experimental: {
+    serverActions: { bodySizeLimit: `${Math.ceil(maxUploadMb) + 1}mb` },
+  },
+};
+
+export default nextConfig;
