@@ -58,6 +58,9 @@ export interface DemoProgram {
     serial: string;
     kind: string;
     timeConstantS: number;
+    /** When the sensor was fitted to its payload, and when it was replaced (null: still flying). */
+    mountedFromUtc: string;
+    mountedToUtc: string | null;
     calibrations: DemoCalibration[];
   }>;
   flights: Array<{
@@ -263,6 +266,14 @@ function sensorFor(payloadKey: string, atMs: number): SensorDef {
   return chosen;
 }
 
+/** Installation time of the next sensor on the same payload, if any. */
+function replacementOf(sensorKey: string, payloadKey: string, installedUtc: string): string | null {
+  const later = SENSORS.filter((s) => s.payloadKey === payloadKey && s.key !== sensorKey && s.installedUtc > installedUtc)
+    .map((s) => s.installedUtc)
+    .sort();
+  return later[0] ?? null;
+}
+
 function calibrationFor(sensor: SensorDef, atMs: number): DemoCalibration {
   const found = sensor.calibrations.find(
     (c) => Date.parse(c.validFromUtc) <= atMs && (c.validToUtc === null || atMs < Date.parse(c.validToUtc)),
@@ -377,8 +388,11 @@ export function generateDemoProgram(seed: number = DEFAULT_DEMO_SEED): DemoProgr
     })),
     layouts: DEMO_LAYOUTS.map((l) => ({ key: l.key, spec: l.spec })),
     payloads: PAYLOADS.map(({ key, schoolKey, name }) => ({ key, schoolKey, name })),
-    sensors: SENSORS.map(({ key, payloadKey, serial, kind, timeConstantS, calibrations }) => ({
-      key, payloadKey, serial, kind, timeConstantS, calibrations,
+    sensors: SENSORS.map(({ key, payloadKey, serial, kind, timeConstantS, installedUtc, calibrations }) => ({
+      key, payloadKey, serial, kind, timeConstantS,
+      mountedFromUtc: installedUtc,
+      mountedToUtc: replacementOf(key, payloadKey, installedUtc),
+      calibrations: calibrations.map((c) => ({ ...c })),
     })),
     flights,
   };

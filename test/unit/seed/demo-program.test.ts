@@ -103,6 +103,19 @@ describe("the invented program", () => {
     }
   });
 
+  test("each flight's sensor was mounted at launch, and sensors of one payload never overlap", () => {
+    for (const flight of program.flights) {
+      const { sensor } = calibrationAt(flight);
+      expect(sensor.mountedFromUtc <= flight.launchAtUtc).toBe(true);
+      if (sensor.mountedToUtc !== null) expect(flight.launchAtUtc < sensor.mountedToUtc).toBe(true);
+    }
+    for (const payload of program.payloads) {
+      const mounts = program.sensors.filter((s) => s.payloadKey === payload.key).sort((a, b) => (a.mountedFromUtc < b.mountedFromUtc ? -1 : 1));
+      mounts.slice(1).forEach((next, i) => expect(mounts[i]?.mountedToUtc).toBe(next.mountedFromUtc));
+      expect(mounts.at(-1)?.mountedToUtc).toBeNull();
+    }
+  });
+
   test("exactly one calibration of the flight's sensor is valid at launch", () => {
     for (const flight of program.flights) expect(calibrationAt(flight).valid).toHaveLength(1);
   });
