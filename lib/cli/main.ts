@@ -4,7 +4,7 @@ import { parseArgs } from "node:util";
 import { getDbHandle } from "../db/index.ts";
 import { applyMigrations, redactUrl } from "../db/migrate.ts";
 import { getEnv } from "../env.ts";
-import { formatIssue, ingestFlightFile, IngestFailure } from "../ingest/index.ts";
+import { formatIssue, ingestFlightFile, IngestFailure, reprocessFlights, type ReprocessSelection } from "../ingest/index.ts";
 import { loadDemoProgram } from "../../seed/load.ts";
 import { resetDatabase } from "./reset.ts";
 
@@ -18,6 +18,9 @@ Commands:
   ingest <files...>            upload logger files through the same pipeline as the web
       --school ID --site ID --layout ID [--sensor ID] [--payload ID] [--calibration ID]
       [--launch ISO-UTC] [--visibility school|program|public] [--lenient] [--title TEXT]
+  reprocess (--all | --flight ID... | --calibration ID | --layout ID) [--force]
+                               re-analyse from the stored raw bytes as new runs (old runs are kept);
+                               safe to interrupt and run again: up-to-date flights are skipped
   help                         this text
 
 DATABASE_URL chooses the database: file:./data/lapsebank.db (default, SQLite) or postgres://...`;
@@ -34,6 +37,8 @@ async function main(argv: string[]): Promise<number> {
       return runDemo(rest, url);
     case "ingest":
       return runIngest(rest);
+    case "reprocess":
+      return runReprocess(rest);
     case undefined:
     case "help":
     case "--help":
@@ -115,6 +120,51 @@ async function runIngest(args: string[]): Promise<number> {
   }
   console.log(`${positionals.length - failed} ingested, ${failed} failed`);
   return failed ? 1 : 0;
+}
+
+async function runReprocess(args: string[]): Promise<number> {
+  const { values } = parseArgs({
+    args,
+    options: {
+      all: { type: "boolean", default: false }, flight: { type: "string", multiple: true },
+      calibration: { type: "string" }, layout: { type: "string" }, force: { type: "boolean", default: false },
+    },
+  });
+  const chosen = [values.all, values.flight?.length, values.calibration, values.layout].filter(Boolean).length;
+  if (chosen !== 1) {
+    console.error("reprocess: give exactly one of --all, --flight ID (repeatable), --calibration ID, --layout ID");
+    return 2;
+  }
+  const selection: ReprocessSelection = values.all
+    ? { all: true }
+    : values.flight?.length
+      ? { flightIds: values.flight }
+      : values.calibration
+        ? { calibrationId: values.calibration }
+        : { layoutId: values.layout as string };
+  const controller = new AbortController();
+  process.once("SIGINT", () => {
+    console.error("\nInterrupted: finishing the current flight; run the same command again to resume.");
+    controller.abort();
+  });
+  const { db } = getDbHandle();
+  const result = await reprocessFlights(db, selection, {
+    reason: "cli reprocess", force: values.force, actor: { userId: null, label: "cli" }, signal: controller.signal,
+    onProgress: (done, total, outcome) => {
+      const change = outcome.change;
+      const detail = outcome.status === "failed" ? outcome.message
+        : change ? [
+            change.tropopauseAltitudeDeltaM !== null ? `tropopause ${change.tropopauseAltitudeDeltaM >= 0 ? "+" : ""}${change.tropopauseAltitudeDeltaM.toFixed(0)} m` : null,
+            change.troposphericLapseRateDeltaKPerKm !== null ? `lapse rate ${change.troposphericLapseRateDeltaKPerKm >= 0 ? "+" : ""}${change.troposphericLapseRateDeltaKPerKm.toFixed(2)} K/km` : null,
+          ].filter(Boolean).join(", ")
+        : "";
+      console.log(`[${done}/${total}] ${outcome.flightId}: ${outcome.status}${detail ? ` (${detail})` : ""}`);
+    },
+  });
+  const count = (status: string) => result.outcomes.filter((o) => o.status === status).length;
+  console.log(`${result.total} selected: ${count("reprocessed")} reprocessed, ${count("up-to-date")} already up to date, ${count("failed")} failed${result.interrupted ? `, ${result.total - result.outcomes.length} not reached (interrupted)` : ""}`);
+  for (const o of result.outcomes.filter((x) => x.status === "failed")) console.error(`  ${o.flightId} stays on its previous run: ${o.message}`);
+  return count("failed") || result.interrupted ? 1 : 0;
 }
 
 main(process.argv.slice(2)).then(

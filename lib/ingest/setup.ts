@@ -80,15 +80,19 @@ export class OverlappingCalibrationError extends Error {
   }
 }
 
-/** Creates a calibration; refuses a validity period that overlaps another of the same sensor. */
-export async function createCalibration(db: DbLike, input: z.input<typeof calibrationInputSchema>) {
-  const data = calibrationInputSchema.parse(input);
+async function refuseOverlap(db: DbLike, data: { sensorId: string; validFromUtc: Date; validToUtc: Date | null }, exceptId?: string) {
   const far = new Date(8.64e15);
-  const others = await db.calibration.findMany({ where: { sensorId: data.sensorId } });
+  const others = await db.calibration.findMany({ where: { sensorId: data.sensorId, ...(exceptId ? { id: { not: exceptId } } : {}) } });
   for (const other of others) {
     const overlaps = data.validFromUtc < (other.validToUtc ?? far) && other.validFromUtc < (data.validToUtc ?? far);
     if (overlaps) throw new OverlappingCalibrationError(other.id, other.validFromUtc, other.validToUtc);
   }
+}
+
+/** Creates a calibration; refuses a validity period that overlaps another of the same sensor. */
+export async function createCalibration(db: DbLike, input: z.input<typeof calibrationInputSchema>) {
+  const data = calibrationInputSchema.parse(input);
+  await refuseOverlap(db, data);
   return db.calibration.create({
     data: {
       sensorId: data.sensorId,
@@ -105,4 +109,24 @@ export async function createCalibration(db: DbLike, input: z.input<typeof calibr
 export async function createLayout(db: DbLike, input: z.input<typeof layoutInputSchema>) {
   const data = layoutInputSchema.parse(input);
   return db.loggerLayout.create({ data: { schoolId: data.schoolId, name: data.spec.name, spec: data.spec as unknown as Prisma.InputJsonValue } });
+}
+
+/**
+ * Corrects a calibration in place (coefficients, validity, notes). Runs made with the old values keep
+ * their own copy of the spec, so history is not lost; reprocessing applies the new values.
+ */
+export async function updateCalibration(db: DbLike, calibrationId: string, input: z.input<typeof calibrationInputSchema>) {
+  const data = calibrationInputSchema.parse(input);
+  await refuseOverlap(db, data, calibrationId);
+  return db.calibration.update({
+    where: { id: calibrationId },
+    data: {
+      spec: data.spec as unknown as Prisma.InputJsonValue,
+      validFromUtc: data.validFromUtc,
+      validToUtc: data.validToUtc,
+      method: data.method,
+      referenceReadings: (data.referenceReadings ?? undefined) as Prisma.InputJsonValue | undefined,
+      notes: data.notes,
+    },
+  });
 }
