@@ -161,33 +161,55 @@ function readingToVolts(cal: TemperatureCalibration, raw: number): number | null
   }
 }
 
-/** Sensor model only (no correction), K or a failure reason. Assumes a validated calibration. */
-function sensorTemperatureK(cal: TemperatureCalibration, raw: number): CalibrationResult {
+/** Sensor model only (no correction), K, or NaN when the reading cannot be converted. */
+function sensorTemperatureOrNaN(cal: TemperatureCalibration, raw: number): number {
   const sensor = cal.sensor;
   switch (sensor.kind) {
-    case "direct": {
-      const k = cal.input === "celsius" ? celsiusToKelvin(raw) : cal.input === "fahrenheit" ? fahrenheitToKelvin(raw) : raw;
-      return { ok: true, temperatureK: k };
-    }
+    case "direct":
+      return cal.input === "celsius" ? celsiusToKelvin(raw) : cal.input === "fahrenheit" ? fahrenheitToKelvin(raw) : raw;
     case "polynomial": {
       let t = 0;
       for (let i = sensor.coefficients.length - 1; i >= 0; i--) t = t * raw + (sensor.coefficients[i] as number);
-      return { ok: true, temperatureK: t };
+      return t;
     }
     case "linear-voltage": {
       const v = readingToVolts(cal, raw);
-      if (v === null) return { ok: false, reason: "invalid-calibration" };
-      return { ok: true, temperatureK: ((v - sensor.offsetV) * 1000) / sensor.scaleMvPerK };
+      return v === null ? Number.NaN : ((v - sensor.offsetV) * 1000) / sensor.scaleMvPerK;
     }
     case "thermistor-divider": {
       const v = readingToVolts(cal, raw);
-      if (v === null) return { ok: false, reason: "invalid-calibration" };
+      if (v === null) return Number.NaN;
       const r = dividerResistanceOhm(v, sensor.supplyV, sensor.seriesOhm, sensor.thermistorSide);
-      if (r === null) return { ok: false, reason: "divider-out-of-range" };
-      const t = thermistorTemperatureK(r, sensor.equation);
-      return t === null ? { ok: false, reason: "non-physical-result" } : { ok: true, temperatureK: t };
+      if (r === null) return Number.NaN;
+      return thermistorTemperatureK(r, sensor.equation) ?? Number.NaN;
     }
   }
+}
+
+/**
+ * Allocation-free form of calibrateReading for bulk use: K, or NaN when the reading cannot be
+ * converted (NaN never leaves the analysis; callers count it as a missing value).
+ */
+export function calibrateReadingOrNaN(cal: TemperatureCalibration, raw: number): number {
+  if (!Number.isFinite(raw)) return Number.NaN;
+  const base = sensorTemperatureOrNaN(cal, raw);
+  const t = cal.correction ? cal.correction.gain * base + cal.correction.offsetK : base;
+  return Number.isFinite(t) && t > 0 ? t : Number.NaN;
+}
+
+/** Sensor model only (no correction), K or a failure reason. Assumes a validated calibration. */
+function sensorTemperatureK(cal: TemperatureCalibration, raw: number): CalibrationResult {
+  const t = sensorTemperatureOrNaN(cal, raw);
+  if (t === t) return { ok: true, temperatureK: t };
+  const sensor = cal.sensor;
+  if ((sensor.kind === "linear-voltage" || sensor.kind === "thermistor-divider") && readingToVolts(cal, raw) === null) {
+    return { ok: false, reason: "invalid-calibration" };
+  }
+  if (sensor.kind === "thermistor-divider") {
+    const v = readingToVolts(cal, raw) as number;
+    if (dividerResistanceOhm(v, sensor.supplyV, sensor.seriesOhm, sensor.thermistorSide) === null) return { ok: false, reason: "divider-out-of-range" };
+  }
+  return { ok: false, reason: "non-physical-result" };
 }
 
 /**

@@ -3,7 +3,7 @@
  * and de-duplication, calibration, altitude choice (GPS, else pressure), missing and
  * out-of-range rows, GPS jumps and temperature spikes. Every removal is counted.
  */
-import { calibrateReading } from "./calibration";
+import { calibrateReadingOrNaN } from "./calibration";
 import { altitudeJumpMask, hampelSpikeMask } from "./filters";
 import { integrateHypsometricAltitudesM } from "./altitude";
 import { standardAtmosphereAltitudeForPressureM } from "./standard-atmosphere";
@@ -39,24 +39,39 @@ export interface CleanResult {
 
 const num = (v: number | null | undefined): number => (typeof v === "number" && Number.isFinite(v) ? v : Number.NaN);
 
-function compact(series: CleanSeries, keep: Uint8Array): CleanSeries {
-  let m = 0;
-  for (let i = 0; i < series.n; i++) if (keep[i] === 1) m++;
-  const pick = (a: Float64Array) => {
-    const out = new Float64Array(m);
-    let k = 0;
-    for (let i = 0; i < series.n; i++) if (keep[i] === 1) out[k++] = a[i] as number;
-    return out;
-  };
+function compact(series: CleanSeries, kept: Int32Array): CleanSeries {
   return {
-    n: m,
-    elapsedS: pick(series.elapsedS),
-    altitudeM: pick(series.altitudeM),
-    temperatureK: pick(series.temperatureK),
-    pressureHpa: pick(series.pressureHpa),
-    relativeHumidityPct: pick(series.relativeHumidityPct),
-    sourceLine: pick(series.sourceLine),
+    n: kept.length,
+    elapsedS: gather(series.elapsedS, kept),
+    altitudeM: gather(series.altitudeM, kept),
+    temperatureK: gather(series.temperatureK, kept),
+    pressureHpa: gather(series.pressureHpa, kept),
+    relativeHumidityPct: gather(series.relativeHumidityPct, kept),
+    sourceLine: gather(series.sourceLine, kept),
   };
+}
+
+function gather(values: Float64Array, indices: Int32Array): Float64Array {
+  const out = new Float64Array(indices.length);
+  for (let i = 0; i < indices.length; i++) out[i] = values[indices[i] as number] as number;
+  return out;
+}
+
+function indicesOf(keep: Uint8Array, n: number): Int32Array {
+  let m = 0;
+  for (let i = 0; i < n; i++) if (keep[i] === 1) m++;
+  const out = new Int32Array(m);
+  for (let i = 0, k = 0; i < n; i++) if (keep[i] === 1) out[k++] = i;
+  return out;
+}
+
+/** Indices whose entry in `drop` (aligned with `indices`) is 0. */
+function filterIndices(indices: Int32Array, drop: Uint8Array): Int32Array {
+  let m = 0;
+  for (let i = 0; i < indices.length; i++) if (drop[i] === 0) m++;
+  const out = new Int32Array(m);
+  for (let i = 0, k = 0; i < indices.length; i++) if (drop[i] === 0) out[k++] = indices[i] as number;
+  return out;
 }
 
 /**
@@ -132,13 +147,9 @@ export function cleanSamples(
     elapsedS[k] = s.elapsedS;
     sourceLine[k] = Number.isFinite(s.sourceLine) ? s.sourceLine : 0;
     const raw = num(s.rawTemperature);
-    if (raw === raw) {
-      const r = calibrateReading(calibration, raw);
-      temperatureK[k] = r.ok ? r.temperatureK : Number.NaN;
-      if (!r.ok) failedCalibration++;
-    } else {
-      temperatureK[k] = Number.NaN;
-    }
+    const t = raw === raw ? calibrateReadingOrNaN(calibration, raw) : Number.NaN;
+    if (raw === raw && t !== t) failedCalibration++;
+    temperatureK[k] = t;
     const p = num(s.pressureHpa);
     pressureHpa[k] = p >= PRESSURE_RANGE_HPA.min && p <= PRESSURE_RANGE_HPA.max ? p : Number.NaN;
     if (pressureHpa[k] === pressureHpa[k]) hasPressure = true;
@@ -201,7 +212,7 @@ export function cleanSamples(
     else if (t !== t || z !== z) removed.missingValues++;
     else keep[k] = 1;
   }
-  let series = compact({ n, elapsedS, altitudeM, temperatureK, pressureHpa, relativeHumidityPct: rhPct, sourceLine }, keep);
+  const full: CleanSeries = { n, elapsedS, altitudeM, temperatureK, pressureHpa, relativeHumidityPct: rhPct, sourceLine };
   if (removed.outOfRange > 0) {
     warnings.push({ code: "out-of-range", message: `${removed.outOfRange} rows had a temperature outside 150–350 K or an altitude outside −500 m to 60 km and were dropped.` });
   }
@@ -209,29 +220,26 @@ export function cleanSamples(
     warnings.push({ code: "missing-values", message: `${removed.missingValues} rows lacked a usable time, temperature or altitude and were dropped.` });
   }
 
-  if (series.n >= 3) {
-    const jumps = altitudeJumpMask(series.elapsedS, series.altitudeM, params.maxVerticalSpeedMPerS, params.hampelWindowSamples);
-    const keepJ = new Uint8Array(series.n);
-    for (let i = 0; i < series.n; i++) {
-      if (jumps[i] === 1) removed.gpsJumps++;
-      else keepJ[i] = 1;
-    }
+  // The glitch filters work on the kept rows only; index lists avoid copying every column.
+  let kept = indicesOf(keep, n);
+  if (kept.length >= 3) {
+    const jumps = altitudeJumpMask(gather(elapsedS, kept), gather(altitudeM, kept), params.maxVerticalSpeedMPerS, params.hampelWindowSamples);
+    const before = kept.length;
+    kept = filterIndices(kept, jumps);
+    removed.gpsJumps = before - kept.length;
     if (removed.gpsJumps > 0) {
-      series = compact(series, keepJ);
       warnings.push({ code: "gps-jumps", message: `${removed.gpsJumps} rows with implausible altitude jumps (faster than ${params.maxVerticalSpeedMPerS} m/s) were dropped.` });
     }
   }
-  if (series.n >= 3) {
-    const spikes = hampelSpikeMask(series.temperatureK, params.hampelWindowSamples, params.hampelThresholdSigmas, HAMPEL_MIN_THRESHOLD_K);
-    const keepS = new Uint8Array(series.n);
-    for (let i = 0; i < series.n; i++) {
-      if (spikes[i] === 1) removed.temperatureSpikes++;
-      else keepS[i] = 1;
-    }
+  if (kept.length >= 3) {
+    const spikes = hampelSpikeMask(gather(temperatureK, kept), params.hampelWindowSamples, params.hampelThresholdSigmas, HAMPEL_MIN_THRESHOLD_K);
+    const before = kept.length;
+    kept = filterIndices(kept, spikes);
+    removed.temperatureSpikes = before - kept.length;
     if (removed.temperatureSpikes > 0) {
-      series = compact(series, keepS);
       warnings.push({ code: "temperature-spikes", message: `${removed.temperatureSpikes} temperature spikes were dropped by the Hampel filter.` });
     }
   }
+  const series = compact(full, kept);
   return { series, removed, timeOrder: monotonic ? "monotonic" : "sorted", flags, warnings, hasPressure, hasHumidity };
 }

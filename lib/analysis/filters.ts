@@ -17,35 +17,43 @@ export function rollingMedian(values: Float64Array, halfWindow: number): Float64
   let size = 0;
   let lo = 0;
   let hi = -1;
-  const insert = (v: number) => {
-    let a = 0;
-    let b = size;
-    while (a < b) {
-      const mid = (a + b) >> 1;
-      if ((window[mid] as number) < v) a = mid + 1;
-      else b = mid;
-    }
-    window.copyWithin(a + 1, a, size);
-    window[a] = v;
-    size++;
-  };
-  const remove = (v: number) => {
-    let a = 0;
-    let b = size;
-    while (a < b) {
-      const mid = (a + b) >> 1;
-      if ((window[mid] as number) < v) a = mid + 1;
-      else b = mid;
-    }
-    window.copyWithin(a, a + 1, size);
-    size--;
-  };
   for (let i = 0; i < n; i++) {
     const newHi = Math.min(n - 1, i + h);
     const newLo = Math.max(0, i - h);
-    // Remove before inserting: the buffer holds at most 2h + 1 values.
-    while (lo < newLo) remove(values[lo++] as number);
-    while (hi < newHi) insert(values[++hi] as number);
+    // Once the window is full, one value leaves and one enters: overwrite the leaving value and
+    // restore order by shifting (cheap for the small windows used here).
+    while (lo < newLo && hi < newHi) {
+      const leaving = values[lo++] as number;
+      const entering = values[++hi] as number;
+      let k = 0;
+      while ((window[k] as number) !== leaving) k++;
+      while (k > 0 && (window[k - 1] as number) > entering) {
+        window[k] = window[k - 1] as number;
+        k--;
+      }
+      while (k < size - 1 && (window[k + 1] as number) < entering) {
+        window[k] = window[k + 1] as number;
+        k++;
+      }
+      window[k] = entering;
+    }
+    while (lo < newLo) {
+      const leaving = values[lo++] as number;
+      let k = 0;
+      while ((window[k] as number) !== leaving) k++;
+      for (; k < size - 1; k++) window[k] = window[k + 1] as number;
+      size--;
+    }
+    while (hi < newHi) {
+      const entering = values[++hi] as number;
+      let k = size;
+      while (k > 0 && (window[k - 1] as number) > entering) {
+        window[k] = window[k - 1] as number;
+        k--;
+      }
+      window[k] = entering;
+      size++;
+    }
     const mid = size >> 1;
     out[i] = size % 2 === 1 ? (window[mid] as number) : ((window[mid - 1] as number) + (window[mid] as number)) / 2;
   }
