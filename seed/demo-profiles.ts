@@ -388,7 +388,7 @@ export function drawAtmosphere(context: FlightConditionsContext, dayRng: Prng, r
   const surfaceTemperatureK = climate.annualMeanK + climate.annualAmplitudeK * seasonCycle + dayRng.normal(0, 3);
   const monthlyLapse = MONTHLY_LAPSE_RATE_K_PER_KM[northernMonth - 1] ?? 6.5;
   const lapseRateKPerKm = clamp(monthlyLapse + dayRng.normal(0, 0.25), 5.0, 7.8);
-  const tropopauseMeanM = 11_500 + 1_000 * seasonCycle - 40 * (Math.abs(climate.latitudeDeg) - 40);
+  const tropopauseMeanM = 11_500 + 1_000 * seasonCycle - 25 * (Math.abs(climate.latitudeDeg) - 40);
   const tropopauseAltitudeM = Math.round(clamp(tropopauseMeanM + dayRng.normal(0, 450), 9_000, 14_000));
 
   const fade = clamp(1 - hoursAfterSunrise / 3, 0, 1);
