@@ -23,7 +23,7 @@ export interface E2eSession {
   browser: Browser;
   context: BrowserContext;
   page: Page;
-  /** Errors the page threw or logged; tests check this stays empty. */
+  /** Errors the page threw or logged and failed requests (HTTP 4xx/5xx); tests check this stays empty. */
   pageErrors: string[];
   close(): Promise<void>;
 }
@@ -48,7 +48,11 @@ export async function openSession(): Promise<E2eSession> {
   const pageErrors: string[] = [];
   page.on("pageerror", (error) => pageErrors.push(`uncaught: ${error.message}`));
   page.on("console", (message) => {
-    if (message.type() === "error") pageErrors.push(`console: ${message.text()}`);
+    // A failed request is reported below with its address; the console line has none.
+    if (message.type() === "error" && !message.text().startsWith("Failed to load resource")) pageErrors.push(`console: ${message.text()}`);
+  });
+  page.on("response", (response) => {
+    if (response.status() >= 400 && !response.url().endsWith("/favicon.ico")) pageErrors.push(`HTTP ${response.status()} ${response.request().method()} ${response.url()}`);
   });
   return {
     baseUrl,
