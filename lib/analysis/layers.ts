@@ -15,6 +15,9 @@ export interface ProfilePoint {
   pressureHpa: number | null;
 }
 
+/** −0 from negating a zero slope would survive JSON round trips as 0 and break equality checks. */
+const withoutNegativeZero = (v: number): number => (v === 0 ? 0 : v);
+
 const DRY_ADIABATIC_K_PER_KM = (STANDARD_GRAVITY_M_PER_S2 / DRY_AIR_SPECIFIC_HEAT_J_PER_KG_K) * 1000;
 
 /**
@@ -61,10 +64,10 @@ export function buildLayerStat(
     phase,
     baseM,
     topM,
-    lapseRateKPerKm: lapseRateKPerKm + 0,
+    lapseRateKPerKm: withoutNegativeZero(lapseRateKPerKm),
     lapseRateStdErrKPerKm: fit.slopeStdErr,
     rSquared: fit.rSquared,
-    theilSenLapseRateKPerKm: theilSen === null ? null : -theilSen + 0,
+    theilSenLapseRateKPerKm: theilSen === null ? null : withoutNegativeZero(-theilSen),
     levelCount: n,
     strengthK,
     meanTemperatureK,
