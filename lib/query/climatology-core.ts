@@ -1,0 +1,562 @@
+/**
+ * Climatology query engine without the server-only marker, so the benchmark script (plain Node)
+ * can run it; app code imports lib/query/climatology.ts instead.
+ */
+import { getDbHandle, type DbHandle } from "../db/index.ts";
+import type { Viewer } from "../auth/visibility.ts";
+import { visibilitySql } from "../auth/visibility-sql.ts";
+import { describe } from "../stats/index.ts";
+import { runClaimCheck, type ClaimCheckResult } from "../stats/claims.ts";
+import { SEASON_CODES, SEASON_NAMES } from "../analysis/season.ts";
+import { andSql, forEngine, listSql, raw, sql, type SqlEngine, type SqlFragment } from "./climatology-sql.ts";
+import { monthAbbreviation, type ClimatologyMetric, type ClimatologyQuery, type MonthSelection } from "./climatology-params.ts";
+
+export interface MetricInfo {
+  key: ClimatologyMetric;
+  label: string;
+  unit: string;
+  /** Why a flight has no value for this metric, as shown in the exclusion count. */
+  missingReason: string;
+}
+
+export const METRIC_INFO: Readonly<Record<ClimatologyMetric, MetricInfo>> = {
+  "tropospheric-lapse-rate": { key: "tropospheric-lapse-rate", label: "tropospheric lapse rate", unit: "K/km", missingReason: "no tropospheric lapse rate" },
+  "band-lapse-rate": { key: "band-lapse-rate", label: "band lapse rate", unit: "K/km", missingReason: "no coverage of the band" },
+  "tropopause-altitude": { key: "tropopause-altitude", label: "first-tropopause height", unit: "km", missingReason: "no tropopause found (flight too low, or undetermined)" },
+  "tropopause-temperature": { key: "tropopause-temperature", label: "first-tropopause temperature", unit: "K", missingReason: "no tropopause found (flight too low, or undetermined)" },
+  "surface-inversion-frequency": { key: "surface-inversion-frequency", label: "surface-inversion frequency", unit: "%", missingReason: "no inversion analysis" },
+  "surface-inversion-depth": { key: "surface-inversion-depth", label: "surface-inversion depth", unit: "m", missingReason: "no surface inversion" },
+  "surface-inversion-strength": { key: "surface-inversion-strength", label: "surface-inversion strength", unit: "K", missingReason: "no surface inversion" },
+  "surface-temperature": { key: "surface-temperature", label: "surface temperature", unit: "K", missingReason: "no surface temperature" },
+  "max-altitude": { key: "max-altitude", label: "maximum altitude", unit: "km", missingReason: "no altitude" },
+};
+
+/** A query the database cannot answer as asked: unknown ids, no flights, an empty claim group. 422 from the API. */
+export class ClimatologyQueryError extends Error {
+  constructor(
+    readonly code: "unknown-reference" | "no-flights" | "empty-group",
+    message: string,
+    readonly field: string | null = null,
+  ) {
+    super(message);
+    this.name = "ClimatologyQueryError";
+  }
+}
+
+export interface ClimatologyFlight {
+  flightId: string;
+  title: string;
+  siteId: string;
+  siteName: string;
+  schoolId: string;
+  schoolName: string;
+  launchAtUtc: string;
+  dayOfYear: number;
+  localHour: number;
+  hoursAfterSunrise: number | null;
+  value: number;
+}
+
+export interface GroupStatistics {
+  n: number;
+  mean: number | null;
+  sd: number | null;
+  sem: number | null;
+  median: number | null;
+  q1: number | null;
+  q3: number | null;
+  iqr: number | null;
+  min: number | null;
+  max: number | null;
+  ci95Low: number | null;
+  ci95High: number | null;
+}
+
+export interface ClimatologyGroup extends GroupStatistics {
+  key: string;
+  label: string;
+  flights: ClimatologyFlight[];
+}
+
+export interface ProfileLevelMean {
+  altitudeM: number;
+  meanTemperatureK: number;
+  sdTemperatureK: number | null;
+  flightCount: number;
+}
+
+export interface GroupProfile {
+  key: string;
+  label: string;
+  levels: ProfileLevelMean[];
+}
+
+export interface ExclusionCount {
+  reason: string;
+  count: number;
+}
+
+export interface ClimatologyResult {
+  metric: MetricInfo;
+  band: { baseM: number; topM: number; phase: "ascent" | "descent" } | null;
+  /** Flights that pass every filter (and fall in a claim group), with or without a metric value. */
+  matchedFlightCount: number;
+  groups: ClimatologyGroup[];
+  overall: GroupStatistics;
+  excluded: ExclusionCount[];
+  excludedCount: number;
+  profiles: GroupProfile[];
+  claim: ClaimCheckResult | null;
+  warnings: string[];
+}
+
+type DbLike = Pick<DbHandle, "db" | "engine">;
+
+interface CandidateRow {
+  flightId: string;
+  runId: string;
+  title: string;
+  siteId: string;
+  schoolId: string;
+  launchAtUtc: string;
+  dayOfYear: unknown;
+  localHour: unknown;
+  hoursAfterSunrise: unknown;
+  groupKey: unknown;
+  value: unknown;
+  bandN?: unknown;
+  bandSx?: unknown;
+  bandSy?: unknown;
+  bandSxx?: unknown;
+  bandSxy?: unknown;
+  bandLowM?: unknown;
+  bandHighM?: unknown;
+  bandBinM?: unknown;
+  bandMaxGapM?: unknown;
+}
+
+/** Numbers come back as number, bigint or numeric text depending on the engine and type. */
+function toNumber(value: unknown): number | null {
+  if (value === null || value === undefined) return null;
+  const n = typeof value === "number" ? value : typeof value === "bigint" ? Number(value) : Number(value);
+  return Number.isFinite(n) ? n : null;
+}
+
+const METRIC_VALUE_SQL: Readonly<Record<Exclude<ClimatologyMetric, "band-lapse-rate">, string>> = {
+  "tropospheric-lapse-rate": `s."troposphericLapseRateKPerKm"`,
+  "tropopause-altitude": `s."tropopauseAltitudeM" / 1000.0`,
+  "tropopause-temperature": `s."tropopauseTemperatureK"`,
+  "surface-inversion-frequency": `CASE WHEN s."hasSurfaceInversion" = TRUE THEN 100.0 ELSE 0.0 END`,
+  "surface-inversion-depth": `CASE WHEN s."hasSurfaceInversion" = TRUE THEN s."surfaceInversionDepthM" END`,
+  "surface-inversion-strength": `CASE WHEN s."hasSurfaceInversion" = TRUE THEN s."surfaceInversionStrengthK" END`,
+  "surface-temperature": `s."surfaceTemperatureK"`,
+  "max-altitude": `s."maxAltitudeM" / 1000.0`,
+};
+
+function selectionSql(selection: MonthSelection): SqlFragment {
+  return selection.kind === "season-name" ? sql`s."seasonName" = ${selection.name}` : sql`s."month" IN ${listSql(selection.months)}`;
+}
+
+/** Local launch date as YYYY-MM-DD on either engine (SQLite keeps DateTime as ISO text). */
+function dateConditions(engine: SqlEngine, from: string | undefined, to: string | undefined): SqlFragment[] {
+  const out: SqlFragment[] = [];
+  if (engine === "sqlite") {
+    if (from) out.push(sql`substr(s."launchAtUtc", 1, 10) >= ${from}`);
+    if (to) out.push(sql`substr(s."launchAtUtc", 1, 10) <= ${to}`);
+  } else {
+    if (from) out.push(sql`s."launchAtUtc" >= CAST(${from} AS timestamp)`);
+    if (to) out.push(sql`s."launchAtUtc" < CAST(${to} AS timestamp) + INTERVAL '1 day'`);
+  }
+  return out;
+}
+
+function filterConditions(viewer: Viewer, query: ClimatologyQuery, engine: SqlEngine): SqlFragment[] {
+  const visibility = visibilitySql(viewer, "f");
+  const c: SqlFragment[] = [raw(`s."isCurrent" = TRUE`), { text: visibility.text, values: visibility.values }];
+  if (query.school.length) c.push(sql`s."schoolId" IN ${listSql(query.school)}`);
+  if (query.site.length) c.push(sql`s."siteId" IN ${listSql(query.site)}`);
+  c.push(...dateConditions(engine, query.from, query.to));
+  if (query.years.length) c.push(sql`s."year" IN ${listSql(query.years)}`);
+  if (query.season) c.push(selectionSql(query.season));
+  if (query.months) c.push(selectionSql(query.months));
+  if (query.hourFrom !== undefined) c.push(sql`s."localHour" >= ${query.hourFrom}`);
+  if (query.hourTo !== undefined) c.push(sql`s."localHour" <= ${query.hourTo}`);
+  if (query.sunriseFrom !== undefined) c.push(sql`s."hoursAfterSunrise" >= ${query.sunriseFrom}`);
+  if (query.sunriseTo !== undefined) c.push(sql`s."hoursAfterSunrise" <= ${query.sunriseTo}`);
+  if (query.elevationFrom !== undefined) c.push(sql`s."solarElevationDeg" >= ${query.elevationFrom}`);
+  if (query.elevationTo !== undefined) c.push(sql`s."solarElevationDeg" <= ${query.elevationTo}`);
+  if (query.qc === "exclude") c.push(raw(`s."qcFlagged" = FALSE`));
+  if (query.minCoverageKm !== undefined) c.push(sql`(s."maxAltitudeM" - s."minAltitudeM") >= ${query.minCoverageKm * 1000}`);
+  if (query.claim === "two-group" && query.groupA && query.groupB) {
+    c.push(sql`(${selectionSql(query.groupA)}) OR (${selectionSql(query.groupB)})`);
+  }
+  return c;
+}
+
+/** floor(column / width) on either engine; `column` may be negative down to −48 h. */
+function hourBinSql(engine: SqlEngine, column: string, widthH: number): SqlFragment {
+  if (engine === "postgres") return raw(`FLOOR(${column} / ${widthH}.0)`);
+  // SQLite's CAST truncates toward zero; shifting by 48 h (a multiple of every offered width) makes it a floor.
+  return raw(`(CAST((${column} + 48.0) / ${widthH}.0 AS INTEGER) - ${48 / widthH})`);
+}
+
+/** The SQL expression whose value names a flight's group; the same expression groups the mean profiles. */
+function groupKeySql(query: ClimatologyQuery, engine: SqlEngine): SqlFragment {
+  if (query.claim === "two-group" && query.groupA && query.groupB) {
+    return sql`CASE WHEN ${selectionSql(query.groupA)} THEN ${"A"} WHEN ${selectionSql(query.groupB)} THEN ${"B"} END`;
+  }
+  switch (query.groupBy) {
+    case "none":
+      return raw(`'all'`);
+    case "season":
+      return raw(`s."seasonName"`);
+    case "season-code":
+      return raw(`s."season"`);
+    case "month":
+      return raw(`s."month"`);
+    case "site":
+      return raw(`s."siteId"`);
+    case "school":
+      return raw(`s."schoolId"`);
+    case "year":
+      return raw(`s."year"`);
+    case "launch-hour":
+      return hourBinSql(engine, `s."localHour"`, query.binHours);
+    case "hours-after-sunrise":
+      return hourBinSql(engine, `s."hoursAfterSunrise"`, query.binHours);
+  }
+}
+
+function bandLimitsM(query: ClimatologyQuery): { baseM: number; topM: number } | null {
+  if (query.metric !== "band-lapse-rate" || query.bandBaseKm === undefined || query.bandTopKm === undefined) return null;
+  return { baseM: query.bandBaseKm * 1000, topM: query.bandTopKm * 1000 };
+}
+
+/**
+ * The candidate flights with their group key and metric value. For the band lapse rate, the
+ * least-squares sums (n, Σx, Σy, Σxy, Σx², with x the altitude in km from the band middle) and
+ * the coverage figures of the chosen phase's levels inside the band are aggregated per run in SQL.
+ */
+function candidateSql(viewer: Viewer, query: ClimatologyQuery, engine: SqlEngine): SqlFragment {
+  const where = andSql(filterConditions(viewer, query, engine));
+  const launchIso = engine === "sqlite" ? `substr(s."launchAtUtc", 1, 19) || 'Z'` : `to_char(s."launchAtUtc", 'YYYY-MM-DD"T"HH24:MI:SS"Z"')`;
+  const band = bandLimitsM(query);
+  const valueSql = band ? raw("NULL") : raw(METRIC_VALUE_SQL[query.metric as Exclude<ClimatologyMetric, "band-lapse-rate">]);
+  const candidates = sql`SELECT s."flightId" AS "flightId", s."runId" AS "runId", f."title" AS "title", s."siteId" AS "siteId",
+      s."schoolId" AS "schoolId", ${raw(launchIso)} AS "launchAtUtc", s."dayOfYear" AS "dayOfYear", s."localHour" AS "localHour",
+      s."hoursAfterSunrise" AS "hoursAfterSunrise", ${groupKeySql(query, engine)} AS "groupKey", ${valueSql} AS "value"
+    FROM "FlightSummary" s JOIN "Flight" f ON f."id" = s."flightId"
+    WHERE ${where}`;
+  if (!band) return candidates;
+  const midM = (band.baseM + band.topM) / 2;
+  return sql`WITH c AS (${candidates}),
+    inband AS (
+      SELECT l."runId" AS "runId", (l."altitudeM" - ${midM}) / 1000.0 AS x, l."temperatureK" AS y, l."altitudeM" AS z,
+        l."topM" - l."baseM" AS w,
+        l."altitudeM" - LAG(l."altitudeM") OVER (PARTITION BY l."runId" ORDER BY l."altitudeM") AS gap
+      FROM "ProfileLevel" l JOIN c ON c."runId" = l."runId"
+      WHERE l."phase" = ${query.phase} AND l."altitudeM" >= ${band.baseM} AND l."altitudeM" <= ${band.topM}
+    ),
+    sums AS (
+      SELECT "runId", COUNT(*) AS n, SUM(x) AS sx, SUM(y) AS sy, SUM(x * x) AS sxx, SUM(x * y) AS sxy,
+        MIN(z) AS lo, MAX(z) AS hi, MAX(w) AS bin, MAX(gap) AS maxgap
+      FROM inband GROUP BY "runId"
+    )
+    SELECT c.*, sums.n AS "bandN", sums.sx AS "bandSx", sums.sy AS "bandSy", sums.sxx AS "bandSxx", sums.sxy AS "bandSxy",
+      sums.lo AS "bandLowM", sums.hi AS "bandHighM", sums.bin AS "bandBinM", sums.maxgap AS "bandMaxGapM"
+    FROM c LEFT JOIN sums ON sums."runId" = c."runId"`;
+}
+
+export type BandCoverage = { lapseRateKPerKm: number; reason: null } | { lapseRateKPerKm: null; reason: "few-levels" | "low-end" | "high-end" | "gap" | "flat" };
+
+/**
+ * Lapse rate −dT/dz (K/km) of one run's band from the SQL sums, with the coverage rule of
+ * lib/analysis/layers.ts computeBandLapseRate: at least 3 levels, lowest level centre within one
+ * bin of the base, highest within one bin of the top, no gap of more than two empty bins. The bin
+ * is the level width (fixed-altitude binning makes every level of a run equally wide).
+ */
+export function bandLapseRateFromSums(
+  sums: { n: number | null; sx: number | null; sy: number | null; sxx: number | null; sxy: number | null; lowM: number | null; highM: number | null; binM: number | null; maxGapM: number | null },
+  baseM: number,
+  topM: number,
+): BandCoverage {
+  const { n, sx, sy, sxx, sxy, lowM, highM } = sums;
+  if (n === null || n < 3 || sx === null || sy === null || sxx === null || sxy === null || lowM === null || highM === null) {
+    return { lapseRateKPerKm: null, reason: "few-levels" };
+  }
+  const binM = sums.binM !== null && sums.binM > 0 ? sums.binM : 100;
+  if (lowM - baseM > binM) return { lapseRateKPerKm: null, reason: "low-end" };
+  if (topM - highM > binM) return { lapseRateKPerKm: null, reason: "high-end" };
+  if (sums.maxGapM !== null && sums.maxGapM > 3 * binM) return { lapseRateKPerKm: null, reason: "gap" };
+  const denominator = n * sxx - sx * sx;
+  if (!(denominator > 0)) return { lapseRateKPerKm: null, reason: "flat" };
+  const slopeKPerKm = (n * sxy - sx * sy) / denominator;
+  return Number.isFinite(slopeKPerKm) ? { lapseRateKPerKm: -slopeKPerKm + 0, reason: null } : { lapseRateKPerKm: null, reason: "flat" };
+}
+
+function statistics(values: readonly number[]): GroupStatistics {
+  const d = describe(values);
+  return { n: d.n, mean: d.mean, sd: d.sd, sem: d.sem, median: d.median, q1: d.q1, q3: d.q3, iqr: d.iqr, min: d.min, max: d.max, ci95Low: d.ci95Low, ci95High: d.ci95High };
+}
+
+function formatBinHour(hour: number): string {
+  const sign = hour < 0 ? "−" : "";
+  const h = Math.abs(hour);
+  return `${sign}${String(Math.floor(h)).padStart(2, "0")}:00`;
+}
+
+function groupLabel(query: ClimatologyQuery, key: string, names: { sites: Map<string, string>; schools: Map<string, string> }): string {
+  if (query.claim === "two-group") return key === "A" ? `A: ${query.groupA?.label ?? "A"}` : `B: ${query.groupB?.label ?? "B"}`;
+  switch (query.groupBy) {
+    case "none":
+      return "All flights";
+    case "month":
+      return monthAbbreviation(Number(key));
+    case "site":
+      return names.sites.get(key) ?? key;
+    case "school":
+      return names.schools.get(key) ?? key;
+    case "launch-hour": {
+      const from = Number(key) * query.binHours;
+      return `${formatBinHour(from)}–${formatBinHour(from + query.binHours)} local`;
+    }
+    case "hours-after-sunrise": {
+      const from = Number(key) * query.binHours;
+      const signed = (h: number) => (h > 0 ? `+${h}` : h < 0 ? `−${-h}` : "0");
+      return `${signed(from)} to ${signed(from + query.binHours)} h after sunrise`;
+    }
+    default:
+      return key;
+  }
+}
+
+function groupOrder(query: ClimatologyQuery, key: string, label: string): [number, string] {
+  if (query.claim === "two-group") return [key === "A" ? 0 : 1, key];
+  switch (query.groupBy) {
+    case "season":
+      return [(SEASON_NAMES as readonly string[]).indexOf(key), key];
+    case "season-code":
+      return [(SEASON_CODES as readonly string[]).indexOf(key), key];
+    case "month":
+    case "year":
+    case "launch-hour":
+    case "hours-after-sunrise":
+      return [Number(key), key];
+    default:
+      return [0, label];
+  }
+}
+
+/** Canonical text of a group key: SQLite and PostgreSQL return numbers, integers and text differently. */
+function keyText(value: unknown): string | null {
+  if (value === null || value === undefined) return null;
+  const n = toNumber(value);
+  if (typeof value !== "string" && n !== null) return String(n);
+  return String(value);
+}
+
+async function checkReferences(handle: DbLike, query: ClimatologyQuery) {
+  const [sites, schools] = await Promise.all([
+    handle.db.site.findMany({ select: { id: true, name: true, schoolId: true } }),
+    handle.db.school.findMany({ select: { id: true, name: true } }),
+  ]);
+  const siteNames = new Map(sites.map((s) => [s.id, s.name]));
+  const schoolNames = new Map(schools.map((s) => [s.id, s.name]));
+  const unknownSites = query.site.filter((id) => !siteNames.has(id));
+  if (unknownSites.length) throw new ClimatologyQueryError("unknown-reference", `unknown site id${unknownSites.length > 1 ? "s" : ""}: ${unknownSites.join(", ")}`, "site");
+  const unknownSchools = query.school.filter((id) => !schoolNames.has(id));
+  if (unknownSchools.length) throw new ClimatologyQueryError("unknown-reference", `unknown school id${unknownSchools.length > 1 ? "s" : ""}: ${unknownSchools.join(", ")}`, "school");
+  if (query.site.length && query.school.length) {
+    const outside = sites.filter((s) => query.site.includes(s.id) && !query.school.includes(s.schoolId));
+    if (outside.length === query.site.length) {
+      throw new ClimatologyQueryError("no-flights", "none of the chosen sites belongs to the chosen schools; the filters contradict each other", "site");
+    }
+  }
+  return { sites: siteNames, schools: schoolNames };
+}
+
+const BAND_REASON_WORDS: Record<Exclude<BandCoverage["reason"], null>, string> = {
+  "few-levels": "fewer than 3 levels in the band",
+  "low-end": "levels do not reach down to the band base",
+  "high-end": "levels do not reach up to the band top",
+  gap: "a data gap of more than two bins inside the band",
+  flat: "levels do not determine a slope",
+};
+
+function kmText(m: number): string {
+  return String(Number((m / 1000).toFixed(3)));
+}
+
+/** Mean temperature per altitude bin and group over the candidate flights' levels of the chosen phase. */
+async function loadProfiles(viewer: Viewer, query: ClimatologyQuery, handle: DbLike): Promise<Map<string, ProfileLevelMean[]>> {
+  const where = andSql(filterConditions(viewer, query, handle.engine));
+  const statement = sql`SELECT ${groupKeySql(query, handle.engine)} AS "groupKey", l."baseM" AS "baseM", l."topM" AS "topM",
+      COUNT(*) AS n, AVG(l."temperatureK") AS "meanK", AVG((l."temperatureK" - 250.0) * (l."temperatureK" - 250.0)) AS "meanSq"
+    FROM "FlightSummary" s JOIN "Flight" f ON f."id" = s."flightId"
+      JOIN "ProfileLevel" l ON l."runId" = s."runId" AND l."phase" = ${query.phase}
+    WHERE ${where}
+    GROUP BY 1, 2, 3
+    ORDER BY 1, 2`;
+  const { text, values } = forEngine(statement, handle.engine);
+  const rows = await handle.db.$queryRawUnsafe<Array<{ groupKey: unknown; baseM: unknown; topM: unknown; n: unknown; meanK: unknown; meanSq: unknown }>>(text, ...values);
+  const out = new Map<string, ProfileLevelMean[]>();
+  for (const row of rows) {
+    const key = keyText(row.groupKey);
+    const baseM = toNumber(row.baseM);
+    const topM = toNumber(row.topM);
+    const n = toNumber(row.n) ?? 0;
+    const meanK = toNumber(row.meanK);
+    const meanSq = toNumber(row.meanSq);
+    if (key === null || baseM === null || topM === null || meanK === null || n < 2) continue;
+    const offset = meanK - 250;
+    const variance = meanSq === null ? null : Math.max(0, ((meanSq - offset * offset) * n) / (n - 1));
+    const level: ProfileLevelMean = { altitudeM: (baseM + topM) / 2, meanTemperatureK: meanK, sdTemperatureK: variance === null ? null : Math.sqrt(variance), flightCount: n };
+    const list = out.get(key) ?? [];
+    list.push(level);
+    out.set(key, list);
+  }
+  return out;
+}
+
+/**
+ * Runs a climatology query for a viewer: every filter, the chosen metric per flight (the band
+ * lapse rate computed from stored levels in SQL), summary statistics per group (lib/stats
+ * describe: n, mean, SD, SEM, median, IQR, min, max, t-based 95 % CI), the contributing flights,
+ * mean profiles per group, flights excluded (counted by reason, never read as zero) and, when
+ * asked, the claim check. Applies the visibility rule of lib/auth to every row.
+ * @throws ClimatologyQueryError for unknown ids, no flight with a value, or an empty claim group.
+ */
+export async function getClimatology(
+  viewer: Viewer,
+  query: ClimatologyQuery,
+  handle: DbLike = getDbHandle(),
+  options: { profiles?: boolean } = {},
+): Promise<ClimatologyResult> {
+  const names = await checkReferences(handle, query);
+  const statement = candidateSql(viewer, query, handle.engine);
+  const { text, values } = forEngine(statement, handle.engine);
+  const [rows, profiles] = await Promise.all([
+    handle.db.$queryRawUnsafe<CandidateRow[]>(text, ...values),
+    options.profiles === false ? Promise.resolve(new Map<string, ProfileLevelMean[]>()) : loadProfiles(viewer, query, handle),
+  ]);
+  const metric = METRIC_INFO[query.metric];
+  const band = bandLimitsM(query);
+  const excludedByReason = new Map<string, number>();
+  const exclude = (reason: string) => excludedByReason.set(reason, (excludedByReason.get(reason) ?? 0) + 1);
+  const bandWords = band ? `no coverage of ${kmText(band.baseM)}–${kmText(band.topM)} km (${query.phase})` : "";
+  const byGroup = new Map<string, ClimatologyFlight[]>();
+
+  for (const row of rows) {
+    let value: number | null;
+    if (band) {
+      const coverage = bandLapseRateFromSums(
+        {
+          n: toNumber(row.bandN), sx: toNumber(row.bandSx), sy: toNumber(row.bandSy), sxx: toNumber(row.bandSxx), sxy: toNumber(row.bandSxy),
+          lowM: toNumber(row.bandLowM), highM: toNumber(row.bandHighM), binM: toNumber(row.bandBinM), maxGapM: toNumber(row.bandMaxGapM),
+        },
+        band.baseM,
+        band.topM,
+      );
+      if (coverage.reason !== null) {
+        exclude(`${bandWords}: ${BAND_REASON_WORDS[coverage.reason]}`);
+        continue;
+      }
+      value = coverage.lapseRateKPerKm;
+    } else {
+      value = toNumber(row.value);
+      if (value === null) {
+        exclude(metric.missingReason);
+        continue;
+      }
+    }
+    const key = keyText(row.groupKey);
+    if (key === null) {
+      exclude(query.groupBy === "hours-after-sunrise" ? "no sunrise at the site that day (polar day or night)" : "no group");
+      continue;
+    }
+    const flight: ClimatologyFlight = {
+      flightId: row.flightId,
+      title: row.title,
+      siteId: row.siteId,
+      siteName: names.sites.get(row.siteId) ?? row.siteId,
+      schoolId: row.schoolId,
+      schoolName: names.schools.get(row.schoolId) ?? row.schoolId,
+      launchAtUtc: row.launchAtUtc,
+      dayOfYear: toNumber(row.dayOfYear) ?? 0,
+      localHour: toNumber(row.localHour) ?? 0,
+      hoursAfterSunrise: toNumber(row.hoursAfterSunrise),
+      value,
+    };
+    const list = byGroup.get(key) ?? [];
+    list.push(flight);
+    byGroup.set(key, list);
+  }
+
+  const groups: ClimatologyGroup[] = [...byGroup.entries()]
+    .map(([key, flights]) => {
+      flights.sort((a, b) => a.launchAtUtc.localeCompare(b.launchAtUtc) || a.flightId.localeCompare(b.flightId));
+      return { key, label: groupLabel(query, key, names), ...statistics(flights.map((f) => f.value)), flights };
+    })
+    .sort((a, b) => {
+      const [ra, ta] = groupOrder(query, a.key, a.label);
+      const [rb, tb] = groupOrder(query, b.key, b.label);
+      return ra - rb || ta.localeCompare(tb);
+    });
+  const excluded = [...excludedByReason.entries()].map(([reason, count]) => ({ reason, count })).sort((a, b) => b.count - a.count);
+  const excludedCount = excluded.reduce((s, e) => s + e.count, 0);
+  const allValues = groups.flatMap((g) => g.flights.map((f) => f.value));
+
+  if (allValues.length === 0) {
+    const why = excluded.length ? ` (${excluded.map((e) => `${e.count} excluded: ${e.reason}`).join("; ")})` : "";
+    const message = rows.length === 0 ? "No flights match these filters" : `None of the ${rows.length} matching flights has a ${metric.label}${why}`;
+    throw new ClimatologyQueryError("no-flights", message, band ? "bandBaseKm" : null);
+  }
+
+  let claim: ClaimCheckResult | null = null;
+  const metricLabel = band ? `${metric.label} ${kmText(band.baseM)}–${kmText(band.topM)} km` : metric.label;
+  if (query.claim === "one-sample" && query.claimValue !== undefined) {
+    const flights = groups.flatMap((g) => g.flights);
+    claim = runClaimCheck({
+      kind: "one-sample",
+      alternative: query.claimSide,
+      statedValue: query.claimValue,
+      group: { label: "all flights", values: flights.map((f) => f.value), siteIds: flights.map((f) => f.siteName) },
+      metricLabel,
+      unit: metric.unit,
+    });
+  } else if (query.claim === "two-group") {
+    const a = groups.find((g) => g.key === "A");
+    const b = groups.find((g) => g.key === "B");
+    for (const [group, field, label] of [[a, "groupA", query.groupA?.label], [b, "groupB", query.groupB?.label]] as const) {
+      if (!group) {
+        throw new ClimatologyQueryError("empty-group", `group ${field === "groupA" ? "A" : "B"} (${label ?? "?"}) has no flight with a ${metric.label} under these filters`, field);
+      }
+    }
+    if (a && b) {
+      claim = runClaimCheck({
+        kind: "two-group",
+        alternative: query.claimSide,
+        groupA: { label: query.groupA?.label ?? "A", values: a.flights.map((f) => f.value), siteIds: a.flights.map((f) => f.siteName) },
+        groupB: { label: query.groupB?.label ?? "B", values: b.flights.map((f) => f.value), siteIds: b.flights.map((f) => f.siteName) },
+        metricLabel,
+        unit: metric.unit,
+      });
+    }
+  }
+
+  const warnings: string[] = [];
+  if (excludedCount > 0) warnings.push(`${excludedCount} flight${excludedCount === 1 ? "" : "s"} excluded: ${excluded.map((e) => `${e.reason} (${e.count})`).join("; ")}`);
+  return {
+    metric: { ...metric, label: metricLabel },
+    band: band ? { ...band, phase: query.phase } : null,
+    matchedFlightCount: rows.length,
+    groups,
+    overall: statistics(allValues),
+    excluded,
+    excludedCount,
+    profiles: groups.map((g) => ({ key: g.key, label: g.label, levels: profiles.get(g.key) ?? [] })),
+    claim,
+    warnings,
+  };
+}
+

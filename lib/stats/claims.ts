@@ -1,0 +1,2 @@
+/** Claim checks (re-exported for lib/stats/index.ts). */
+export * from "./claim-check";
