@@ -381,19 +381,23 @@ export function generateDemoProgram(seed: number = DEFAULT_DEMO_SEED): DemoProgr
   });
   flights.sort((a, b) => (a.launchAtUtc < b.launchAtUtc ? -1 : a.launchAtUtc > b.launchAtUtc ? 1 : a.key < b.key ? -1 : 1));
 
+  return { ...generateDemoSetup(), flights };
+}
+
+/** Schools, sites, layouts, payloads and sensors of the demo program, without flights (cheap). Fresh copies on every call. */
+export function generateDemoSetup(): Omit<DemoProgram, "flights"> {
   return {
     schools: SCHOOLS.map((s) => ({ ...s })),
     sites: SITES.map(({ key, schoolKey, name, latitudeDeg, longitudeDeg, elevationM, timeZone }) => ({
       key, schoolKey, name, latitudeDeg, longitudeDeg, elevationM, timeZone,
     })),
-    layouts: DEMO_LAYOUTS.map((l) => ({ key: l.key, spec: l.spec })),
+    layouts: DEMO_LAYOUTS.map((l) => ({ key: l.key, spec: structuredClone(l.spec) })),
     payloads: PAYLOADS.map(({ key, schoolKey, name }) => ({ key, schoolKey, name })),
     sensors: SENSORS.map(({ key, payloadKey, serial, kind, timeConstantS, installedUtc, calibrations }) => ({
       key, payloadKey, serial, kind, timeConstantS,
       mountedFromUtc: installedUtc,
       mountedToUtc: replacementOf(key, payloadKey, installedUtc),
-      calibrations: calibrations.map((c) => ({ ...c })),
+      calibrations: structuredClone(calibrations),
     })),
-    flights,
   };
 }

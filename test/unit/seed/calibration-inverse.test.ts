@@ -7,7 +7,7 @@ import {
   thermistorResistanceOhm,
 } from "@/seed/demo-calibration";
 import { LINEAR_10BIT_CALIBRATION, THERMISTOR_12BIT_CALIBRATION } from "@/seed/demo-files";
-import { generateDemoProgram } from "@/seed/demo-program";
+import { generateDemoSetup } from "@/seed/demo-program";
 import { forwardTemperatureK } from "./forward-calibration";
 
 const STEINHART_HART_10K = { kind: "steinhart-hart", a: 1.129148e-3, b: 2.34125e-4, c: 8.76741e-8 } as const; // REFERENCE.md §7 [S]
@@ -65,8 +65,7 @@ describe("raw readings from temperatures", () => {
   });
 });
 
-const program = generateDemoProgram();
-const demoCalibrations = program.sensors.flatMap((sensor) =>
+const demoCalibrations = generateDemoSetup().sensors.flatMap((sensor) =>
   sensor.calibrations.map((c) => ({ name: `${sensor.serial} ${c.method} from ${c.validFromUtc}`, spec: c.spec })),
 );
 // Range of air temperatures a flight meets, surface summer to cold tropopause [P].
