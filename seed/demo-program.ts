@@ -20,6 +20,7 @@ import {
   type FlightTruth,
   type SiteClimate,
 } from "./demo-profiles.ts";
+import { rawReadingForTemperature } from "./demo-calibration.ts";
 import type { LoggerLayoutSpec } from "./demo-types.ts";
 import { createPrng, mixSeed, type Prng } from "./prng.ts";
 
@@ -37,6 +38,13 @@ export interface DemoCalibration {
   method: string;
   spec: TemperatureCalibration;
   notes: string;
+  /** Field-check readings (mean raw reading in the bath, bath temperature); absent for nominal sets. */
+  referenceReadings?: Array<{ raw: number; temperatureK: number }>;
+}
+
+interface CalibrationDef extends Omit<DemoCalibration, "referenceReadings"> {
+  /** Bath or reference temperatures of the field check, K. */
+  referenceTemperaturesK: number[];
 }
 
 export interface DemoProgram {
@@ -129,7 +137,7 @@ interface SensorDef {
   timeConstantS: number;
   /** Flown from this instant until the next sensor of the payload takes over. */
   installedUtc: string;
-  calibrations: DemoCalibration[];
+  calibrations: CalibrationDef[];
 }
 
 function withCorrection(base: TemperatureCalibration, gain: number, offsetK: number): TemperatureCalibration {
@@ -143,59 +151,59 @@ const SENSORS: SensorDef[] = [
     key: "heron-ntc-1", payloadKey: "heron-gondola", serial: "NTC10K-2207-A14", kind: "ntc-thermistor", timeConstantS: 3,
     installedUtc: PROGRAM_START_UTC,
     calibrations: [
-      { validFromUtc: PROGRAM_START_UTC, validToUtc: "2023-09-01T00:00:00Z", method: "nominal", spec: THERMISTOR_12BIT_CALIBRATION, notes: "Datasheet Steinhart–Hart set, no field check yet." },
-      { validFromUtc: "2023-09-01T00:00:00Z", validToUtc: null, method: "two-point field", spec: withCorrection(THERMISTOR_12BIT_CALIBRATION, 1.0075, -1.76), notes: "Ice bath and freezer check against a reference thermometer." },
+      { validFromUtc: PROGRAM_START_UTC, validToUtc: "2023-09-01T00:00:00Z", method: "nominal", spec: THERMISTOR_12BIT_CALIBRATION, notes: "Datasheet Steinhart–Hart set, no field check yet.", referenceTemperaturesK: [] },
+      { validFromUtc: "2023-09-01T00:00:00Z", validToUtc: null, method: "two-point field", spec: withCorrection(THERMISTOR_12BIT_CALIBRATION, 1.0075, -1.76), notes: "Ice bath and freezer check against a reference thermometer.", referenceTemperaturesK: [273.15, 255.15] },
     ],
   },
   {
     key: "heron-ntc-2", payloadKey: "heron-gondola", serial: "NTC10K-2405-B02", kind: "ntc-thermistor", timeConstantS: 2.5,
     installedUtc: "2024-07-01T00:00:00Z",
     calibrations: [
-      { validFromUtc: "2024-07-01T00:00:00Z", validToUtc: null, method: "two-point field", spec: withCorrection(THERMISTOR_12BIT_CALIBRATION, 0.9962, 1.12), notes: "Replacement bead after a hard landing; checked in ice bath and dry-ice chest." },
+      { validFromUtc: "2024-07-01T00:00:00Z", validToUtc: null, method: "two-point field", spec: withCorrection(THERMISTOR_12BIT_CALIBRATION, 0.9962, 1.12), notes: "Replacement bead after a hard landing; checked in ice bath and dry-ice chest.", referenceTemperaturesK: [273.15, 194.65] },
     ],
   },
   {
     key: "wren-lv-1", payloadKey: "wren-gondola", serial: "LV10-23-0117", kind: "linear-voltage", timeConstantS: 6,
     installedUtc: PROGRAM_START_UTC,
     calibrations: [
-      { validFromUtc: PROGRAM_START_UTC, validToUtc: "2024-03-15T00:00:00Z", method: "one-point field", spec: withCorrection(LINEAR_10BIT_CALIBRATION, 1, -2.1), notes: "Room-temperature comparison; sensor read 2.1 K high." },
-      { validFromUtc: "2024-03-15T00:00:00Z", validToUtc: null, method: "two-point field", spec: withCorrection(LINEAR_10BIT_CALIBRATION, 1.012, -5.05), notes: "Ice bath and warm water bath." },
+      { validFromUtc: PROGRAM_START_UTC, validToUtc: "2024-03-15T00:00:00Z", method: "one-point field", spec: withCorrection(LINEAR_10BIT_CALIBRATION, 1, -2.1), notes: "Room-temperature comparison; sensor read 2.1 K high.", referenceTemperaturesK: [294.15] },
+      { validFromUtc: "2024-03-15T00:00:00Z", validToUtc: null, method: "two-point field", spec: withCorrection(LINEAR_10BIT_CALIBRATION, 1.012, -5.05), notes: "Ice bath and warm water bath.", referenceTemperaturesK: [273.15, 313.15] },
     ],
   },
   {
     key: "capsule-a-lv-1", payloadKey: "capsule-a", serial: "LV10-22-0871", kind: "linear-voltage", timeConstantS: 7,
     installedUtc: PROGRAM_START_UTC,
     calibrations: [
-      { validFromUtc: PROGRAM_START_UTC, validToUtc: null, method: "one-point field", spec: withCorrection(LINEAR_10BIT_CALIBRATION, 1, 1.4), notes: "Compared with the school weather station before the first flight." },
+      { validFromUtc: PROGRAM_START_UTC, validToUtc: null, method: "one-point field", spec: withCorrection(LINEAR_10BIT_CALIBRATION, 1, 1.4), notes: "Compared with the school weather station before the first flight.", referenceTemperaturesK: [288.15] },
     ],
   },
   {
     key: "capsule-b-ntc-1", payloadKey: "capsule-b", serial: "NTC10K-2301-Q07", kind: "ntc-thermistor", timeConstantS: 3,
     installedUtc: PROGRAM_START_UTC,
     calibrations: [
-      { validFromUtc: PROGRAM_START_UTC, validToUtc: "2025-01-10T00:00:00Z", method: "nominal", spec: THERMISTOR_12BIT_CALIBRATION, notes: "Datasheet Steinhart–Hart set." },
-      { validFromUtc: "2025-01-10T00:00:00Z", validToUtc: null, method: "two-point field", spec: withCorrection(THERMISTOR_12BIT_CALIBRATION, 1.004, -0.9), notes: "Ice bath and boiling-point check, corrected for site pressure." },
+      { validFromUtc: PROGRAM_START_UTC, validToUtc: "2025-01-10T00:00:00Z", method: "nominal", spec: THERMISTOR_12BIT_CALIBRATION, notes: "Datasheet Steinhart–Hart set.", referenceTemperaturesK: [] },
+      { validFromUtc: "2025-01-10T00:00:00Z", validToUtc: null, method: "two-point field", spec: withCorrection(THERMISTOR_12BIT_CALIBRATION, 1.004, -0.9), notes: "Ice bath and boiling-point check, corrected for site pressure.", referenceTemperaturesK: [273.15, 368.05] },
     ],
   },
   {
     key: "pod-one-lv-1", payloadKey: "pod-one", serial: "LV10-22-5530", kind: "linear-voltage", timeConstantS: 8,
     installedUtc: PROGRAM_START_UTC,
     calibrations: [
-      { validFromUtc: PROGRAM_START_UTC, validToUtc: "2024-10-01T00:00:00Z", method: "one-point field", spec: withCorrection(LINEAR_10BIT_CALIBRATION, 1, -0.8), notes: "Room-temperature comparison." },
+      { validFromUtc: PROGRAM_START_UTC, validToUtc: "2024-10-01T00:00:00Z", method: "one-point field", spec: withCorrection(LINEAR_10BIT_CALIBRATION, 1, -0.8), notes: "Room-temperature comparison.", referenceTemperaturesK: [294.15] },
     ],
   },
   {
     key: "pod-one-lv-2", payloadKey: "pod-one", serial: "LV10-24-6102", kind: "linear-voltage", timeConstantS: 8,
     installedUtc: "2024-10-01T00:00:00Z",
     calibrations: [
-      { validFromUtc: "2024-10-01T00:00:00Z", validToUtc: null, method: "two-point field", spec: withCorrection(LINEAR_10BIT_CALIBRATION, 0.994, 1.9), notes: "Replacement sensor; ice bath and warm water bath." },
+      { validFromUtc: "2024-10-01T00:00:00Z", validToUtc: null, method: "two-point field", spec: withCorrection(LINEAR_10BIT_CALIBRATION, 0.994, 1.9), notes: "Replacement sensor; ice bath and warm water bath.", referenceTemperaturesK: [273.15, 313.15] },
     ],
   },
   {
     key: "pod-two-lv-1", payloadKey: "pod-two", serial: "LV10-23-5987", kind: "linear-voltage", timeConstantS: 6,
     installedUtc: PROGRAM_START_UTC,
     calibrations: [
-      { validFromUtc: PROGRAM_START_UTC, validToUtc: null, method: "two-point field", spec: withCorrection(LINEAR_10BIT_CALIBRATION, 1.005, -2.6), notes: "Ice bath and warm water bath." },
+      { validFromUtc: PROGRAM_START_UTC, validToUtc: null, method: "two-point field", spec: withCorrection(LINEAR_10BIT_CALIBRATION, 1.005, -2.6), notes: "Ice bath and warm water bath.", referenceTemperaturesK: [273.15, 313.15] },
     ],
   },
 ];
@@ -266,6 +274,22 @@ function sensorFor(payloadKey: string, atMs: number): SensorDef {
   return chosen;
 }
 
+/**
+ * Readings the field check would have produced: the raw reading the sensor gives at each
+ * bath temperature under the stored calibration (a bath mean, so not rounded to whole counts).
+ */
+function toDemoCalibration(def: CalibrationDef): DemoCalibration {
+  const { referenceTemperaturesK, ...calibration } = def;
+  const copy: DemoCalibration = structuredClone(calibration);
+  if (referenceTemperaturesK.length > 0) {
+    copy.referenceReadings = referenceTemperaturesK.map((temperatureK) => ({
+      raw: Math.round(rawReadingForTemperature(def.spec, temperatureK) * 100) / 100,
+      temperatureK,
+    }));
+  }
+  return copy;
+}
+
 /** Installation time of the next sensor on the same payload, if any. */
 function replacementOf(sensorKey: string, payloadKey: string, installedUtc: string): string | null {
   const later = SENSORS.filter((s) => s.payloadKey === payloadKey && s.key !== sensorKey && s.installedUtc > installedUtc)
@@ -274,7 +298,7 @@ function replacementOf(sensorKey: string, payloadKey: string, installedUtc: stri
   return later[0] ?? null;
 }
 
-function calibrationFor(sensor: SensorDef, atMs: number): DemoCalibration {
+function calibrationFor(sensor: SensorDef, atMs: number): CalibrationDef {
   const found = sensor.calibrations.find(
     (c) => Date.parse(c.validFromUtc) <= atMs && (c.validToUtc === null || atMs < Date.parse(c.validToUtc)),
   );
@@ -397,7 +421,7 @@ export function generateDemoSetup(): Omit<DemoProgram, "flights"> {
       key, payloadKey, serial, kind, timeConstantS,
       mountedFromUtc: installedUtc,
       mountedToUtc: replacementOf(key, payloadKey, installedUtc),
-      calibrations: structuredClone(calibrations),
+      calibrations: calibrations.map(toDemoCalibration),
     })),
   };
 }

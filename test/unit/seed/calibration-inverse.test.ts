@@ -103,3 +103,36 @@ test("the demo uses both sensor families and corrected calibrations", () => {
   expect(kinds).toEqual(new Set(["linear-voltage", "thermistor-divider"]));
   expect(demoCalibrations.some((c) => c.spec.correction && c.spec.correction.gain !== 1)).toBe(true);
 });
+
+describe("field-check reference readings", () => {
+  const withReadings = generateDemoSetup().sensors.flatMap((sensor) =>
+    sensor.calibrations.map((c) => ({ name: `${sensor.serial} ${c.method}`, calibration: c })),
+  );
+
+  test.each(withReadings)("$name: readings map to their bath temperatures", ({ calibration }) => {
+    const readings = calibration.referenceReadings ?? [];
+    const expectedCount = calibration.method === "two-point field" ? 2 : calibration.method === "one-point field" ? 1 : 0;
+    expect(readings).toHaveLength(expectedCount);
+    for (const reading of readings) {
+      // A 0.005-count rounding of the mean reading is worth < 0.01 K on either sensor [D].
+      expect(forwardTemperatureK(calibration.spec, reading.raw)).toBeCloseTo(reading.temperatureK, 2);
+    }
+  });
+});
+
+test.each(
+  generateDemoSetup()
+    .sensors.flatMap((sensor) => sensor.calibrations.map((c) => ({ name: `${sensor.serial} from ${c.validFromUtc}`, calibration: c })))
+    .filter(({ calibration }) => calibration.method === "two-point field"),
+)("$name: a two-point fit of the readings gives back the stored correction", ({ calibration }) => {
+  const { correction, ...uncorrected } = calibration.spec;
+  const [first, second] = calibration.referenceReadings ?? [];
+  if (!correction || !first || !second) throw new Error("two-point calibration without correction or readings");
+  // [D] straight line through (measured, reference) pairs: T_ref = gain · T_measured + offsetK
+  const measured1 = forwardTemperatureK(uncorrected, first.raw);
+  const measured2 = forwardTemperatureK(uncorrected, second.raw);
+  const gain = (second.temperatureK - first.temperatureK) / (measured2 - measured1);
+  const offsetK = first.temperatureK - gain * measured1;
+  expect(gain).toBeCloseTo(correction.gain, 3);
+  expect(Math.abs(offsetK - correction.offsetK)).toBeLessThan(0.2);
+});
