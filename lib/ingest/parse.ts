@@ -121,18 +121,6 @@ export async function parseLoggerFile(bytes: Uint8Array, layout: LoggerLayoutSpe
   const delimiter = layout.delimiter === "whitespace" ? "\t" : DELIMITER_CHARACTERS[layout.delimiter];
   const decimalComma = layout.decimalSeparator === ",";
 
-  const parser = Readable.from([text]).pipe(
-    createCsvParser({
-      delimiter,
-      comment: layout.commentPrefix ?? undefined,
-      comment_no_infix: true,
-      relax_column_count: true,
-      relax_quotes: true,
-      skip_empty_lines: true,
-      info: true,
-    }),
-  );
-
   const samples: RawSample[] = [];
   const issues: IngestIssue[] = [];
   const skippedRows: IngestIssue[] = [];
@@ -143,6 +131,7 @@ export async function parseLoggerFile(bytes: Uint8Array, layout: LoggerLayoutSpe
   let dayOffsetS = 0;
   let previousElapsedS: number | null = null;
   let dataRowCount = 0;
+  let stopped = false;
   const clockDate = options.clockDateUtc ?? null;
 
   const reject = (issue: IngestIssue) => {
@@ -150,94 +139,114 @@ export async function parseLoggerFile(bytes: Uint8Array, layout: LoggerLayoutSpe
     else issues.push(issue);
   };
 
-  try {
-    for await (const chunk of parser as AsyncIterable<{ record: string[]; info: { lines: number } }>) {
-      const { record, info } = chunk;
-      const line = info.lines;
-      if (!columns) {
-        header = record;
-        columns = resolveColumns(layout, header, fileName, line);
-        continue;
-      }
-      dataRowCount++;
-      const values: Partial<Record<LayoutColumnKey, number | null>> = {};
-      let rowIssue: IngestIssue | null = null;
-      for (const column of columns) {
-        const field = record[column.index];
-        if (field === undefined) {
-          rowIssue = {
-            code: "short-row",
-            message: `The row has ${record.length} field${record.length === 1 ? "" : "s"} but ${column.key} is in column ${column.index + 1} (truncated or wrongly delimited line?)`,
-            file: fileName, line, column: column.index + 1, columnName: column.name,
-          };
-          break;
-        }
-        if (column.key === "time" && layout.columns.time.format !== "elapsed-seconds") {
-          const parsedTime = parseTimeField(field, layout.columns.time.format, clockDate);
-          if (parsedTime === "invalid" || parsedTime === "needs-date") {
-            rowIssue = {
-              code: parsedTime === "needs-date" ? "clock-time-needs-date" : "bad-time",
-              message:
-                parsedTime === "needs-date"
-                  ? "Clock times need the launch date: give the launch time with the upload"
-                  : `"${field}" is not a ${layout.columns.time.format === "clock-time" ? "clock time (HH:MM:SS)" : "ISO 8601 date-time"}`,
-              file: fileName, line, column: column.index + 1, columnName: column.name,
-            };
-            break;
-          }
-          let absoluteMs = parsedTime;
-          if (layout.columns.time.format === "clock-time") {
-            // Clock times roll over at midnight UTC: a jump back of more than 12 h is the next day.
-            const clockS = (parsedTime - (clockDate ? Date.UTC(clockDate.getUTCFullYear(), clockDate.getUTCMonth(), clockDate.getUTCDate()) : 0)) / 1000;
-            if (previousClockS !== null && clockS + dayOffsetS < previousClockS - 12 * 3600) dayOffsetS += 86400;
-            previousClockS = clockS + dayOffsetS;
-            absoluteMs = parsedTime + dayOffsetS * 1000;
-          }
-          firstAbsoluteMs ??= absoluteMs;
-          values.time = (absoluteMs - firstAbsoluteMs) / 1000;
-          continue;
-        }
-        const parsed = parseNumber(field, decimalComma);
-        if (parsed === "invalid") {
-          rowIssue = {
-            code: "not-a-number",
-            message: `"${field.trim().slice(0, 40)}" is not a number (expected ${column.key}${decimalComma ? ", decimal comma" : ""})`,
-            file: fileName, line, column: column.index + 1, columnName: column.name,
-          };
-          break;
-        }
-        values[column.key] = parsed;
-      }
-      if (!rowIssue && (values.time === null || values.time === undefined)) {
-        const timeColumn = columns.find((c) => c.key === "time");
-        rowIssue = { code: "missing-time", message: "The time field is empty", file: fileName, line, column: (timeColumn?.index ?? 0) + 1, columnName: timeColumn?.name ?? null };
-      }
-      if (!rowIssue && mode === "strict" && previousElapsedS !== null && (values.time as number) < previousElapsedS) {
-        const timeColumn = columns.find((c) => c.key === "time");
-        rowIssue = {
-          code: "time-backwards",
-          message: `Time goes backwards here (${values.time} s after ${previousElapsedS} s); fix the file or upload in lenient mode to have rows sorted`,
-          file: fileName, line, column: (timeColumn?.index ?? 0) + 1, columnName: timeColumn?.name ?? null,
-        };
-      }
-      if (rowIssue) {
-        reject(rowIssue);
-        if (issues.length >= maxIssues) break;
-        continue;
-      }
-      const elapsedS = values.time as number;
-      previousElapsedS = elapsedS;
-      samples.push({
-        elapsedS,
-        altitudeM: toMetres(values.altitude ?? null, layout.columns.altitude?.unit),
-        rawTemperature: values.temperature ?? null,
-        pressureHpa: toHpa(values.pressure ?? null, layout.columns.pressure?.unit),
-        relativeHumidityPct: values.humidity ?? null,
-        latitudeDeg: values.latitude ?? null,
-        longitudeDeg: values.longitude ?? null,
-        sourceLine: line,
-      });
+  const handleRecord = (record: string[], line: number): void => {
+    if (stopped) return;
+    if (!columns) {
+      header = record;
+      columns = resolveColumns(layout, header, fileName, line);
+      return;
     }
+    dataRowCount++;
+    const values: Partial<Record<LayoutColumnKey, number | null>> = {};
+    let rowIssue: IngestIssue | null = null;
+    for (const column of columns) {
+      const field = record[column.index];
+      if (field === undefined) {
+        rowIssue = {
+          code: "short-row",
+          message: `The row has ${record.length} field${record.length === 1 ? "" : "s"} but ${column.key} is in column ${column.index + 1} (truncated or wrongly delimited line?)`,
+          file: fileName, line, column: column.index + 1, columnName: column.name,
+        };
+        break;
+      }
+      if (column.key === "time" && layout.columns.time.format !== "elapsed-seconds") {
+        const parsedTime = parseTimeField(field, layout.columns.time.format, clockDate);
+        if (parsedTime === "invalid" || parsedTime === "needs-date") {
+          rowIssue = {
+            code: parsedTime === "needs-date" ? "clock-time-needs-date" : "bad-time",
+            message:
+              parsedTime === "needs-date"
+                ? "Clock times need the launch date: give the launch time with the upload"
+                : `"${field}" is not a ${layout.columns.time.format === "clock-time" ? "clock time (HH:MM:SS)" : "ISO 8601 date-time"}`,
+            file: fileName, line, column: column.index + 1, columnName: column.name,
+          };
+          break;
+        }
+        let absoluteMs = parsedTime;
+        if (layout.columns.time.format === "clock-time") {
+          // Clock times roll over at midnight UTC: a jump back of more than 12 h is the next day.
+          const clockS = (parsedTime - (clockDate ? Date.UTC(clockDate.getUTCFullYear(), clockDate.getUTCMonth(), clockDate.getUTCDate()) : 0)) / 1000;
+          if (previousClockS !== null && clockS + dayOffsetS < previousClockS - 12 * 3600) dayOffsetS += 86400;
+          previousClockS = clockS + dayOffsetS;
+          absoluteMs = parsedTime + dayOffsetS * 1000;
+        }
+        firstAbsoluteMs ??= absoluteMs;
+        values.time = (absoluteMs - firstAbsoluteMs) / 1000;
+        continue;
+      }
+      const parsed = parseNumber(field, decimalComma);
+      if (parsed === "invalid") {
+        rowIssue = {
+          code: "not-a-number",
+          message: `"${field.trim().slice(0, 40)}" is not a number (expected ${column.key}${decimalComma ? ", decimal comma" : ""})`,
+          file: fileName, line, column: column.index + 1, columnName: column.name,
+        };
+        break;
+      }
+      values[column.key] = parsed;
+    }
+    if (!rowIssue && (values.time === null || values.time === undefined)) {
+      const timeColumn = columns.find((c) => c.key === "time");
+      rowIssue = { code: "missing-time", message: "The time field is empty", file: fileName, line, column: (timeColumn?.index ?? 0) + 1, columnName: timeColumn?.name ?? null };
+    }
+    if (!rowIssue && mode === "strict" && previousElapsedS !== null && (values.time as number) < previousElapsedS) {
+      const timeColumn = columns.find((c) => c.key === "time");
+      rowIssue = {
+        code: "time-backwards",
+        message: `Time goes backwards here (${values.time} s after ${previousElapsedS} s); fix the file or upload in lenient mode to have rows sorted`,
+        file: fileName, line, column: (timeColumn?.index ?? 0) + 1, columnName: timeColumn?.name ?? null,
+      };
+    }
+    if (rowIssue) {
+      reject(rowIssue);
+      if (issues.length >= maxIssues) stopped = true;
+      return;
+    }
+    const elapsedS = values.time as number;
+    previousElapsedS = elapsedS;
+    samples.push({
+      elapsedS,
+      altitudeM: toMetres(values.altitude ?? null, layout.columns.altitude?.unit),
+      rawTemperature: values.temperature ?? null,
+      pressureHpa: toHpa(values.pressure ?? null, layout.columns.pressure?.unit),
+      relativeHumidityPct: values.humidity ?? null,
+      latitudeDeg: values.latitude ?? null,
+      longitudeDeg: values.longitude ?? null,
+      sourceLine: line,
+    });
+  };
+
+  // Rows are handled as the parser emits them (on_record) rather than through an async iterator,
+  // which costs a promise per row.
+  try {
+    await new Promise<void>((resolve, fail) => {
+      const parser = createCsvParser({
+        delimiter,
+        comment: layout.commentPrefix ?? undefined,
+        comment_no_infix: true,
+        relax_column_count: true,
+        relax_quotes: true,
+        skip_empty_lines: true,
+        on_record: (record: string[], context: { lines: number }) => {
+          handleRecord(record, context.lines);
+          return null;
+        },
+      });
+      parser.on("error", fail);
+      parser.on("end", resolve);
+      parser.resume();
+      Readable.from(chunksOf(text)).pipe(parser);
+    });
   } catch (error) {
     if (error instanceof IngestFailure) throw error;
     const message = error instanceof Error ? error.message : String(error);
@@ -260,6 +269,11 @@ export async function parseLoggerFile(bytes: Uint8Array, layout: LoggerLayoutSpe
     dataRowCount,
     skippedRows,
   };
+}
+
+/** Feeds the parser in 64 KiB pieces, as a file stream would. */
+function* chunksOf(text: string): Generator<string> {
+  for (let i = 0; i < text.length; i += 65536) yield text.slice(i, i + 65536);
 }
 
 function parseTimeField(field: string, format: "clock-time" | "iso-datetime", clockDate: Date | null): number | "invalid" | "needs-date" {
