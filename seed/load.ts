@@ -43,7 +43,8 @@ export async function loadDemoProgram(
     const schoolId = id(payloadSchool, sensor.payloadKey, "payload");
     const created = await createSensor(db, {
       schoolId, serial: sensor.serial, kind: sensor.kind, timeConstantS: sensor.timeConstantS,
-      payloadId: id(payloadIds, sensor.payloadKey, "payload"), mountedFromUtc: new Date("2020-01-01T00:00:00Z"),
+      payloadId: id(payloadIds, sensor.payloadKey, "payload"),
+      mountedFromUtc: sensor.mountedFromUtc, mountedToUtc: sensor.mountedToUtc,
     });
     sensorIds.set(sensor.key, created.id);
     for (const calibration of sensor.calibrations) {

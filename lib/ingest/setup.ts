@@ -31,6 +31,7 @@ export const sensorInputSchema = z.object({
   notes: z.string().max(2000).default(""),
   payloadId: z.string().min(1).optional(),
   mountedFromUtc: z.coerce.date().optional(),
+  mountedToUtc: z.coerce.date().nullable().optional(),
 });
 
 export const calibrationInputSchema = z
@@ -65,10 +66,10 @@ export async function createPayload(db: DbLike, input: z.input<typeof payloadInp
 }
 
 export async function createSensor(db: DbLike, input: z.input<typeof sensorInputSchema>) {
-  const { payloadId, mountedFromUtc, ...data } = sensorInputSchema.parse(input);
+  const { payloadId, mountedFromUtc, mountedToUtc, ...data } = sensorInputSchema.parse(input);
   const sensor = await db.sensor.create({ data });
   if (payloadId) {
-    await db.sensorMount.create({ data: { sensorId: sensor.id, payloadId, fromUtc: mountedFromUtc ?? new Date(0) } });
+    await db.sensorMount.create({ data: { sensorId: sensor.id, payloadId, fromUtc: mountedFromUtc ?? new Date(0), toUtc: mountedToUtc ?? null } });
   }
   return sensor;
 }

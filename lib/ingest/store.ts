@@ -1,5 +1,6 @@
 import type { Db, DbTransaction } from "../db/index.ts";
 import { Prisma } from "../db/index.ts";
+import { insertProfileLevels } from "../db/bulk.ts";
 import { getEnv } from "../env.ts";
 import type { AnalysisParameters, TemperatureCalibration } from "../analysis/types.ts";
 import { fileIssue, IngestFailure, type IngestIssue } from "./errors.ts";
@@ -261,13 +262,14 @@ export async function writeAnalysisRun(
     },
     select: { id: true },
   });
-  await tx.profileLevel.createMany({
-    data: analysis.levels.map((l) => ({
-      runId: run.id, phase: l.phase, altitudeM: l.altitudeM, baseM: l.baseM, topM: l.topM, sampleCount: l.sampleCount,
-      temperatureK: l.temperatureK, temperatureSdK: finiteOrNull(l.temperatureSdK), pressureHpa: finiteOrNull(l.pressureHpa),
-      relativeHumidityPct: finiteOrNull(l.relativeHumidityPct),
+  await insertProfileLevels(
+    tx,
+    run.id,
+    analysis.levels.map((l) => ({
+      phase: l.phase, altitudeM: l.altitudeM, baseM: l.baseM, topM: l.topM, sampleCount: l.sampleCount, temperatureK: l.temperatureK,
+      temperatureSdK: finiteOrNull(l.temperatureSdK), pressureHpa: finiteOrNull(l.pressureHpa), relativeHumidityPct: finiteOrNull(l.relativeHumidityPct),
     })),
-  });
+  );
   await tx.layerStat.createMany({
     data: analysis.layers.map((l) => ({
       runId: run.id, kind: l.kind, phase: l.phase, baseM: l.baseM, topM: l.topM,
