@@ -1,13 +1,28 @@
 import type { Prisma } from "../db/index.ts";
 
 /**
- * Who is asking. Until accounts exist (sharing issue), the app runs in single-user "local"
- * mode where the person at the machine sees and edits everything.
+ * Who is asking. While no account exists (a fresh laptop install), the app runs in single-user
+ * "local" mode where the person at the machine sees and edits everything; the first account
+ * created becomes program admin and from then on visitors are anonymous until they sign in.
  */
 export type Viewer =
   | { kind: "local" }
   | { kind: "anonymous" }
-  | { kind: "member"; userId: string; isProgramAdmin: boolean; schoolIds: string[] };
+  | {
+      kind: "member";
+      userId: string;
+      isProgramAdmin: boolean;
+      /** Schools the viewer belongs to (for an API token: the token's school only). */
+      schoolIds: string[];
+      memberships: Array<{ schoolId: string; role: Role }>;
+      /** Set when the request came with an API token: what the token may do. */
+      tokenScopes?: TokenScope[];
+      email?: string;
+      displayName?: string;
+    };
+
+export type Role = "school-admin" | "contributor" | "reader";
+export type TokenScope = "read" | "upload";
 
 export const LOCAL_VIEWER: Viewer = { kind: "local" };
 

@@ -1,0 +1,203 @@
+import { createHash, randomBytes, timingSafeEqual } from "node:crypto";
+import { hash as argon2Hash, verify as argon2Verify } from "@node-rs/argon2";
+import { z } from "zod";
+import type { Db } from "../db/index.ts";
+import type { Role, TokenScope, Viewer } from "./visibility.ts";
+
+export const SESSION_COOKIE = "lapsebank_session";
+const SESSION_DAYS = 14;
+const LOGIN_WINDOW_MS = 15 * 60 * 1000;
+const MAX_FAILURES_PER_ACCOUNT = 5;
+const MAX_FAILURES_PER_ADDRESS = 20;
+const INVITATION_DAYS = 7;
+
+export const emailSchema = z.string().trim().toLowerCase().email("Enter a valid email address").max(200);
+export const passwordSchema = z.string().min(10, "Use at least 10 characters").max(200);
+export const signUpSchema = z.object({ email: emailSchema, password: passwordSchema, displayName: z.string().trim().min(1, "Enter your name").max(120) });
+export const signInSchema = z.object({ email: emailSchema, password: z.string().min(1, "Enter your password").max(200) });
+export const roleSchema = z.enum(["school-admin", "contributor", "reader"]);
+export const tokenScopeSchema = z.enum(["read", "upload"]);
+
+export function sha256(text: string): string {
+  return createHash("sha256").update(text).digest("hex");
+}
+
+function secret(bytes = 32): string {
+  return randomBytes(bytes).toString("base64url");
+}
+
+/** argon2id with the library's defaults (OWASP-recommended memory and passes). */
+export function hashPassword(password: string): Promise<string> {
+  return argon2Hash(password);
+}
+
+export async function countUsers(db: Db): Promise<number> {
+  return db.user.count();
+}
+
+export class AccountError extends Error {
+  constructor(readonly code: "email-taken" | "bad-credentials" | "rate-limited" | "invalid-invitation" | "not-found" | "weak-password", message: string, readonly retryAfterS?: number) {
+    super(message);
+    this.name = "AccountError";
+  }
+}
+
+/** Creates a user; the very first account becomes program admin. */
+export async function createUser(db: Db, input: z.input<typeof signUpSchema>, options: { programAdmin?: boolean } = {}) {
+  const data = signUpSchema.parse(input);
+  const existing = await db.user.findUnique({ where: { email: data.email } });
+  if (existing) throw new AccountError("email-taken", "An account with this email already exists; sign in instead.");
+  const passwordHash = await hashPassword(data.password);
+  return db.$transaction(async (tx) => {
+    const isFirst = (await tx.user.count()) === 0;
+    const user = await tx.user.create({ data: { email: data.email, displayName: data.displayName, passwordHash, isProgramAdmin: isFirst || options.programAdmin === true } });
+    await tx.auditEvent.create({ data: { actorUserId: user.id, actorLabel: data.email, action: "user.create", entityType: "user", entityId: user.id, details: { programAdmin: user.isProgramAdmin } } });
+    return { id: user.id, email: user.email, displayName: user.displayName, isProgramAdmin: user.isProgramAdmin };
+  });
+}
+
+async function recentFailures(db: Db, key: string): Promise<number> {
+  return db.loginAttempt.count({ where: { key, at: { gt: new Date(Date.now() - LOGIN_WINDOW_MS) } } });
+}
+
+/**
+ * Checks email and password, rate-limited per account and per address through the database
+ * (so every app process sees the same counts). Returns a new session secret for the cookie.
+ */
+export async function signIn(db: Db, input: z.input<typeof signInSchema>, address: string): Promise<{ sessionSecret: string; userId: string; expiresAt: Date }> {
+  const data = signInSchema.parse(input);
+  const accountKey = `account:${data.email}`;
+  const addressKey = `address:${address}`;
+  const [accountFailures, addressFailures] = await Promise.all([recentFailures(db, accountKey), recentFailures(db, addressKey)]);
+  if (accountFailures >= MAX_FAILURES_PER_ACCOUNT || addressFailures >= MAX_FAILURES_PER_ADDRESS) {
+    throw new AccountError("rate-limited", "Too many failed sign-in attempts. Wait 15 minutes and try again.", LOGIN_WINDOW_MS / 1000);
+  }
+  const user = await db.user.findUnique({ where: { email: data.email } });
+  // Verify against a dummy hash when the account does not exist, so timing does not reveal it.
+  const ok = user ? await argon2Verify(user.passwordHash, data.password) : (await argon2Verify(await dummyHash(), data.password), false);
+  if (!user || !ok) {
+    await db.loginAttempt.createMany({ data: [{ key: accountKey }, { key: addressKey }] });
+    throw new AccountError("bad-credentials", "Email or password is wrong.");
+  }
+  await db.loginAttempt.deleteMany({ where: { key: accountKey } });
+  const sessionSecret = secret();
+  const expiresAt = new Date(Date.now() + SESSION_DAYS * 86_400_000);
+  await db.session.create({ data: { id: sha256(sessionSecret), userId: user.id, expiresAt } });
+  return { sessionSecret, userId: user.id, expiresAt };
+}
+
+let dummy: Promise<string> | null = null;
+function dummyHash(): Promise<string> {
+  dummy ??= hashPassword(secret());
+  return dummy;
+}
+
+export async function signOut(db: Db, sessionSecret: string): Promise<void> {
+  await db.session.deleteMany({ where: { id: sha256(sessionSecret) } });
+}
+
+export async function changePassword(db: Db, userId: string, currentPassword: string, newPassword: string): Promise<void> {
+  const user = await db.user.findUnique({ where: { id: userId } });
+  if (!user || !(await argon2Verify(user.passwordHash, currentPassword))) throw new AccountError("bad-credentials", "The current password is wrong.");
+  const parsed = passwordSchema.safeParse(newPassword);
+  if (!parsed.success) throw new AccountError("weak-password", parsed.error.issues[0]?.message ?? "Choose a longer password");
+  await db.user.update({ where: { id: userId }, data: { passwordHash: await hashPassword(parsed.data) } });
+  await db.auditEvent.create({ data: { actorUserId: userId, actorLabel: user.email, action: "user.password-change", entityType: "user", entityId: userId } });
+}
+
+async function memberViewer(db: Db, userId: string, extra: { schoolId?: string; scopes?: TokenScope[] } = {}): Promise<Viewer | null> {
+  const user = await db.user.findUnique({ where: { id: userId }, include: { memberships: true } });
+  if (!user) return null;
+  let memberships = user.memberships.map((m) => ({ schoolId: m.schoolId, role: m.role as Role }));
+  if (extra.schoolId) memberships = memberships.filter((m) => m.schoolId === extra.schoolId);
+  return {
+    kind: "member",
+    userId: user.id,
+    email: user.email,
+    displayName: user.displayName,
+    // A token acts for one school: program-admin powers don't travel with it.
+    isProgramAdmin: extra.scopes ? false : user.isProgramAdmin,
+    schoolIds: memberships.map((m) => m.schoolId),
+    memberships,
+    ...(extra.scopes ? { tokenScopes: extra.scopes } : {}),
+  };
+}
+
+/** The viewer behind a session cookie, or null when it is missing, unknown or expired. */
+export async function viewerFromSession(db: Db, sessionSecret: string | undefined): Promise<Viewer | null> {
+  if (!sessionSecret) return null;
+  const session = await db.session.findUnique({ where: { id: sha256(sessionSecret) } });
+  if (!session || session.expiresAt < new Date()) return null;
+  if (Date.now() - session.lastSeenAt.getTime() > 3_600_000) {
+    await db.session.update({ where: { id: session.id }, data: { lastSeenAt: new Date() } }).catch(() => undefined);
+  }
+  return memberViewer(db, session.userId);
+}
+
+/** Token format: `lbk_<random>`; only its sha256 is stored. */
+export async function createApiToken(db: Db, input: { userId: string; schoolId: string; name: string; scopes: TokenScope[] }): Promise<{ id: string; token: string }> {
+  const membership = await db.membership.findUnique({ where: { userId_schoolId: { userId: input.userId, schoolId: input.schoolId } } });
+  const user = await db.user.findUnique({ where: { id: input.userId } });
+  if (!membership && !user?.isProgramAdmin) throw new AccountError("not-found", "You can only make tokens for a school you belong to.");
+  const token = `lbk_${secret()}`;
+  const row = await db.apiToken.create({ data: { userId: input.userId, schoolId: input.schoolId, name: input.name.trim().slice(0, 80) || "token", tokenHash: sha256(token), scopes: [...new Set(input.scopes)].join(",") } });
+  await db.auditEvent.create({ data: { actorUserId: input.userId, actorLabel: user?.email ?? "", schoolId: input.schoolId, action: "token.create", entityType: "api-token", entityId: row.id, details: { scopes: row.scopes, name: row.name } } });
+  return { id: row.id, token };
+}
+
+export async function revokeApiToken(db: Db, tokenId: string, byUserId: string): Promise<void> {
+  const row = await db.apiToken.findUnique({ where: { id: tokenId } });
+  if (!row || row.userId !== byUserId) throw new AccountError("not-found", "No such token.");
+  await db.apiToken.update({ where: { id: tokenId }, data: { revokedAt: new Date() } });
+  await db.auditEvent.create({ data: { actorUserId: byUserId, schoolId: row.schoolId, action: "token.revoke", entityType: "api-token", entityId: tokenId } });
+}
+
+/** The viewer behind `Authorization: Bearer lbk_...`; null when unknown or revoked. */
+export async function viewerFromToken(db: Db, token: string): Promise<Viewer | null> {
+  const row = await db.apiToken.findUnique({ where: { tokenHash: sha256(token) } });
+  if (!row || row.revokedAt) return null;
+  const expected = Buffer.from(row.tokenHash, "hex");
+  if (!timingSafeEqual(expected, Buffer.from(sha256(token), "hex"))) return null;
+  await db.apiToken.update({ where: { id: row.id }, data: { lastUsedAt: new Date() } });
+  const scopes = row.scopes.split(",").filter((s): s is TokenScope => s === "read" || s === "upload");
+  return memberViewer(db, row.userId, { schoolId: row.schoolId, scopes });
+}
+
+/** A one-time invitation link secret (shown once; stored hashed; expires). */
+export async function createInvitation(db: Db, input: { schoolId: string; role: Role; createdById: string | null }): Promise<{ id: string; secret: string; expiresAt: Date }> {
+  const invitationSecret = secret(24);
+  const expiresAt = new Date(Date.now() + INVITATION_DAYS * 86_400_000);
+  const row = await db.invitation.create({ data: { schoolId: input.schoolId, role: input.role, tokenHash: sha256(invitationSecret), createdById: input.createdById, expiresAt } });
+  await db.auditEvent.create({ data: { actorUserId: input.createdById, schoolId: input.schoolId, action: "invitation.create", entityType: "invitation", entityId: row.id, details: { role: input.role } } });
+  return { id: row.id, secret: invitationSecret, expiresAt };
+}
+
+/** Accepts an invitation for a signed-in user: adds (or upgrades) their membership; the link then stops working. */
+export async function acceptInvitation(db: Db, invitationSecret: string, userId: string): Promise<{ schoolId: string; role: Role }> {
+  return db.$transaction(async (tx) => {
+    const invitation = await tx.invitation.findUnique({ where: { tokenHash: sha256(invitationSecret) } });
+    if (!invitation || invitation.usedAt || invitation.expiresAt < new Date()) throw new AccountError("invalid-invitation", "This invitation link has expired or was already used. Ask for a new one.");
+    const used = await tx.invitation.updateMany({ where: { id: invitation.id, usedAt: null }, data: { usedAt: new Date() } });
+    if (used.count !== 1) throw new AccountError("invalid-invitation", "This invitation link was already used.");
+    await tx.membership.upsert({
+      where: { userId_schoolId: { userId, schoolId: invitation.schoolId } },
+      update: { role: invitation.role },
+      create: { userId, schoolId: invitation.schoolId, role: invitation.role },
+    });
+    await tx.auditEvent.create({ data: { actorUserId: userId, schoolId: invitation.schoolId, action: "membership.join", entityType: "membership", entityId: `${userId}:${invitation.schoolId}`, details: { role: invitation.role } } });
+    return { schoolId: invitation.schoolId, role: invitation.role as Role };
+  });
+}
+
+export async function setMembershipRole(db: Db, input: { userId: string; schoolId: string; role: Role | null; byUserId: string | null }): Promise<void> {
+  if (input.role === null) {
+    await db.membership.deleteMany({ where: { userId: input.userId, schoolId: input.schoolId } });
+  } else {
+    await db.membership.upsert({
+      where: { userId_schoolId: { userId: input.userId, schoolId: input.schoolId } },
+      update: { role: input.role },
+      create: { userId: input.userId, schoolId: input.schoolId, role: input.role },
+    });
+  }
+  await db.auditEvent.create({ data: { actorUserId: input.byUserId, schoolId: input.schoolId, action: "membership.role", entityType: "membership", entityId: `${input.userId}:${input.schoolId}`, details: { role: input.role } } });
+}

@@ -1,0 +1,80 @@
+import type { Role, Viewer } from "./visibility.ts";
+
+/** Everything a person can try to do; the matrix below is the one place that decides. */
+export type Action =
+  | "flight.read"
+  | "flight.upload"
+  | "flight.edit"
+  | "flight.delete"
+  | "flight.restore"
+  | "setup.edit"
+  | "members.manage"
+  | "audit.read"
+  | "program.settings";
+
+export interface Target {
+  /** The school the flight or setup item belongs to (or the school an upload goes to). */
+  schoolId: string | null;
+  /** For flights. */
+  visibility?: string;
+  deleted?: boolean;
+}
+
+const WRITERS: readonly Role[] = ["school-admin", "contributor"];
+
+function roleIn(viewer: Extract<Viewer, { kind: "member" }>, schoolId: string | null): Role | null {
+  if (!schoolId) return null;
+  return viewer.memberships.find((m) => m.schoolId === schoolId)?.role ?? null;
+}
+
+/**
+ * May `viewer` do `action` on `target`? Program admins may do everything; school admins manage their
+ * school; contributors upload and edit their school's flights and setup; readers read. Visitors who
+ * are not signed in read public flights only. API tokens are further limited to their scopes.
+ */
+export function can(viewer: Viewer, action: Action, target: Target): boolean {
+  if (viewer.kind === "local") return true;
+  const visible = (target.visibility === "public" || (viewer.kind === "member" && target.visibility === "program")) && !target.deleted;
+  if (viewer.kind === "anonymous") return action === "flight.read" && target.visibility === "public" && !target.deleted;
+
+  if (viewer.tokenScopes) {
+    const scopeNeeded = action === "flight.read" ? "read" : action === "flight.upload" ? "upload" : null;
+    if (!scopeNeeded || !viewer.tokenScopes.includes(scopeNeeded)) return false;
+  }
+  if (viewer.isProgramAdmin) return true;
+  const role = roleIn(viewer, target.schoolId);
+  switch (action) {
+    case "flight.read":
+      return visible || (role !== null && !target.deleted);
+    case "flight.upload":
+    case "flight.edit":
+    case "flight.delete":
+    case "setup.edit":
+      return role !== null && WRITERS.includes(role);
+    case "flight.restore":
+    case "members.manage":
+    case "audit.read":
+      return role === "school-admin";
+    case "program.settings":
+      return false;
+  }
+}
+
+/** 401 when nobody is signed in, 403 when signed in but not allowed. */
+export function refusalStatus(viewer: Viewer): 401 | 403 {
+  return viewer.kind === "anonymous" ? 401 : 403;
+}
+
+export class PermissionError extends Error {
+  constructor(readonly status: 401 | 403, message: string) {
+    super(message);
+    this.name = "PermissionError";
+  }
+}
+
+/** Throws PermissionError (401/403) unless `can(viewer, action, target)`. */
+export function requirePermission(viewer: Viewer, action: Action, target: Target): void {
+  if (can(viewer, action, target)) return;
+  const status = refusalStatus(viewer);
+  throw new PermissionError(status, status === 401 ? "Sign in first." : `You may not ${action.replace(".", " ")} here.`);
+}
