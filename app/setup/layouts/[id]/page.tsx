@@ -1,0 +1,31 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { notFound } from "next/navigation";
+import { connection } from "next/server";
+import { loggerLayoutSpecSchema } from "@/lib/ingest/layout";
+import { getSetupLayout, listSetupSchools } from "@/lib/query/setup-pages";
+import { LayoutForm } from "@/app/_components/setup/layout-form";
+import { getViewer } from "@/app/_lib/viewer";
+
+export const metadata: Metadata = { title: "Logger layout · Setup" };
+
+export default async function LayoutPage({ params }: { params: Promise<{ id: string }> }) {
+  await connection();
+  await getViewer();
+  const { id } = await params;
+  const [layout, schools] = await Promise.all([getSetupLayout(id), listSetupSchools()]);
+  if (!layout) notFound();
+  const spec = loggerLayoutSpecSchema.safeParse(layout.spec);
+  return (
+    <>
+      <p className="small"><Link href="/setup/layouts">← Logger layouts</Link></p>
+      <h1>{layout.name}</h1>
+      <p className="muted">
+        {layout.schoolName} · used by {layout.flightCount} flight(s). Their runs keep the layout they were read with; after a change they are
+        listed for re-analysis. {layout.flightCount > 0 && <Link href={`/setup/reprocess?layout=${layout.id}`}>Flights using it</Link>}
+      </p>
+      {!spec.success && <p className="notice notice-warn">The stored layout could not be read ({spec.error.issues[0]?.message}); enter it again.</p>}
+      <LayoutForm schools={schools} initial={{ id: layout.id, schoolId: layout.schoolId, spec: spec.success ? spec.data : null }} />
+    </>
+  );
+}
