@@ -7,6 +7,8 @@ import { getEnv } from "../env.ts";
 import { formatIssue, ingestFlightFile, IngestFailure, reprocessFlights, type ReprocessSelection } from "../ingest/index.ts";
 import { loadDemoProgram } from "../../seed/load.ts";
 import { resetDatabase } from "./reset.ts";
+import { createUser } from "../auth/accounts.ts";
+import { z } from "zod";
 
 const HELP = `Lapsebank command line
 
@@ -21,6 +23,8 @@ Commands:
   reprocess (--all | --flight ID... | --calibration ID | --layout ID) [--force]
                                re-analyse from the stored raw bytes as new runs (old runs are kept);
                                safe to interrupt and run again: up-to-date flights are skipped
+  admin create --email E --name N
+                               create a program admin (password from LAPSEBANK_ADMIN_PASSWORD or stdin)
   help                         this text
 
 DATABASE_URL chooses the database: file:./data/lapsebank.db (default, SQLite) or postgres://...`;
@@ -39,6 +43,8 @@ async function main(argv: string[]): Promise<number> {
       return runIngest(rest);
     case "reprocess":
       return runReprocess(rest);
+    case "admin":
+      return runAdmin(rest);
     case undefined:
     case "help":
     case "--help":
@@ -120,6 +126,45 @@ async function runIngest(args: string[]): Promise<number> {
   }
   console.log(`${positionals.length - failed} ingested, ${failed} failed`);
   return failed ? 1 : 0;
+}
+
+async function runAdmin(args: string[]): Promise<number> {
+  const [sub, ...rest] = args;
+  if (sub !== "create") {
+    console.error("usage: admin create --email E --name N (password from LAPSEBANK_ADMIN_PASSWORD or the first line of stdin)");
+    return 2;
+  }
+  const { values } = parseArgs({ args: rest, options: { email: { type: "string" }, name: { type: "string" } } });
+  let password = process.env.LAPSEBANK_ADMIN_PASSWORD;
+  if (!password) {
+    process.stderr.write("Password (at least 10 characters): ");
+    password = await readLine();
+  }
+  const { db } = getDbHandle();
+  try {
+    const user = await createUser(db, { email: values.email ?? "", displayName: values.name ?? "", password: password ?? "" }, { programAdmin: true });
+    console.log(`Program admin ${user.email} created.`);
+    return 0;
+  } catch (error) {
+    const message = error instanceof z.ZodError ? error.issues.map((i) => `${i.path.join(".")}: ${i.message}`).join("; ") : (error as Error).message;
+    console.error(`admin create: ${message}`);
+    return 1;
+  }
+}
+
+function readLine(): Promise<string> {
+  return new Promise((resolve) => {
+    let buffer = "";
+    process.stdin.setEncoding("utf8");
+    process.stdin.on("data", (chunk) => {
+      buffer += chunk;
+      if (buffer.includes("\n")) {
+        process.stdin.pause();
+        resolve(buffer.split("\n")[0]?.trim() ?? "");
+      }
+    });
+    process.stdin.on("end", () => resolve(buffer.trim()));
+  });
 }
 
 async function runReprocess(args: string[]): Promise<number> {
