@@ -6,7 +6,7 @@ import type { ProfileLevel } from "../../lib/analysis/types.ts";
 import { flightVisibilityWhere, type Viewer } from "../../lib/auth/visibility.ts";
 import { visibilitySql } from "../../lib/auth/visibility-sql.ts";
 import { ingestFlightFile } from "../../lib/ingest/index.ts";
-import { ClimatologyQueryError, getClimatology } from "../../lib/query/climatology.ts";
+import { ClimatologyQueryError, getClimatology, type ClimatologyResult } from "../../lib/query/climatology.ts";
 import { forEngine } from "../../lib/query/climatology-sql.ts";
 import { climatologyQuerySchema, parseClimatologyQuery } from "../../lib/query/climatology-params.ts";
 import { mulberry32 } from "../../lib/stats/index.ts";
@@ -23,6 +23,16 @@ function query(record: Record<string, string>) {
   const parsed = parseClimatologyQuery(record);
   if (!parsed.ok) throw new Error(parsed.message);
   return parsed.query;
+}
+
+/** The result, or the query error it raised (any other error fails the test). */
+async function attempt(promise: Promise<ClimatologyResult>): Promise<ClimatologyResult | ClimatologyQueryError> {
+  try {
+    return await promise;
+  } catch (error) {
+    if (error instanceof ClimatologyQueryError) return error;
+    throw error;
+  }
 }
 
 /** A slice of the invented demo program: the first flights of every site, plus every July flight at the southern site. */
@@ -105,12 +115,12 @@ describe.each(testEngines())("climatology on %s (demo subset)", (engine) => {
     for (const c of cases) {
       const q = query({ groupBy: "none", ...c.record });
       const expected = rows.filter(c.keep).map((r) => r.flightId).sort();
-      const result = await getClimatology(LOCAL, q, database).catch((e: unknown) => e);
+      const result = await attempt(getClimatology(LOCAL, q, database));
       if (expected.length === 0) {
         expect(result).toBeInstanceOf(ClimatologyQueryError);
         continue;
       }
-      if (result instanceof Error) throw result;
+      if (result instanceof ClimatologyQueryError) throw result;
       expect(result.matchedFlightCount, JSON.stringify(c.record)).toBe(expected.length);
       const got = result.groups.flatMap((g) => g.flights.map((f) => f.flightId)).sort();
       expect(got.length + result.excludedCount).toBe(expected.length);
@@ -151,13 +161,13 @@ describe.each(testEngines())("climatology on %s (demo subset)", (engine) => {
       expected.set(r.flightId, reference.layer ? reference.layer.lapseRateKPerKm : null);
     }
     const included = [...expected.values()].filter((v) => v !== null).length;
-    const result = await getClimatology(LOCAL, query({ metric: "band-lapse-rate", bandBaseKm: String(baseKm), bandTopKm: String(topKm), groupBy: "none" }), database).catch((e: unknown) => e);
+    const result = await attempt(getClimatology(LOCAL, query({ metric: "band-lapse-rate", bandBaseKm: String(baseKm), bandTopKm: String(topKm), groupBy: "none" }), database));
     if (included === 0) {
       expect(result).toBeInstanceOf(ClimatologyQueryError);
       expect((result as ClimatologyQueryError).message).toMatch(new RegExp(`${rows.length} excluded: no coverage of ${baseKm}–${topKm} km`));
       return;
     }
-    if (result instanceof Error) throw result;
+    if (result instanceof ClimatologyQueryError) throw result;
     const flights = result.groups.flatMap((g) => g.flights);
     expect(flights.length).toBe(included);
     expect(result.excludedCount).toBe(rows.length - included);
@@ -213,13 +223,15 @@ describe.each(testEngines())("climatology on %s (demo subset)", (engine) => {
       if (!f || !p) continue;
       await database.db.flight.update({ where: { id: f.id }, data: { visibility: p.visibility, deletedAt: p.deleted ? new Date("2025-01-01T00:00:00Z") : null } });
     }
+    const member = (userId: string, isProgramAdmin: boolean, schoolIds: string[]) =>
+      ({ kind: "member", userId, isProgramAdmin, schoolIds, memberships: schoolIds.map((schoolId) => ({ schoolId, role: "reader" })) }) as Viewer;
     const viewers: Viewer[] = [
       { kind: "local" },
       { kind: "anonymous" },
-      { kind: "member", userId: "u1", isProgramAdmin: false, schoolIds: [] },
-      { kind: "member", userId: "u2", isProgramAdmin: false, schoolIds: [schools[0] as string] },
-      { kind: "member", userId: "u3", isProgramAdmin: false, schoolIds: schools.slice(0, 2) },
-      { kind: "member", userId: "u4", isProgramAdmin: true, schoolIds: [] },
+      member("u1", false, []),
+      member("u2", false, [schools[0] as string]),
+      member("u3", false, schools.slice(0, 2)),
+      member("u4", true, []),
     ];
     const counts: number[] = [];
     for (const viewer of viewers) {

@@ -58,7 +58,7 @@ describe("parseClimatologyQuery", () => {
     { record: { claim: "two-group", groupA: "summer", groupB: "Dec-Feb" }, field: "groupB", message: /southern sites/ },
     { record: { site: "a;drop" }, field: "site", message: /letters, digits/ },
     { record: { months: "Smarch" }, field: "months", message: /months: / },
-  ])("refuses $record", ({ record, field, message }) => {
+  ] as Array<{ record: Record<string, string>; field: string; message: RegExp }>)("refuses $record", ({ record, field, message }) => {
     const parsed = parseClimatologyQuery(record);
     expect(parsed.ok).toBe(false);
     if (parsed.ok) return;
