@@ -1,0 +1,31 @@
+import type { Metadata } from "next";
+import { connection } from "next/server";
+import { getUploadChoices } from "@/lib/query/setup";
+import { getEnv } from "@/lib/env";
+import { getViewer } from "@/app/_lib/viewer";
+import { UploadForm } from "./_components/upload-form";
+
+export const metadata: Metadata = { title: "Upload" };
+
+export default async function UploadPage() {
+  await connection();
+  await getViewer();
+  const choices = await getUploadChoices();
+  return (
+    <>
+      <h1>Upload flights</h1>
+      <p className="lead">
+        Choose the school, launch site and logger layout, then one or more logger files. The first rows of a chosen file are
+        previewed with the layout before anything is stored. Each file is calibrated, analysed and stored with its raw bytes.
+      </p>
+      {choices.schools.length === 0 ? (
+        <p className="notice notice-warn">
+          No school exists yet. Create one with the command line (<code>npm run lapsebank -- demo</code> loads the demo program)
+          until the Setup pages arrive.
+        </p>
+      ) : (
+        <UploadForm choices={choices} maxUploadMb={getEnv().LAPSEBANK_MAX_UPLOAD_MB} />
+      )}
+    </>
+  );
+}
