@@ -1,0 +1,105 @@
+/**
+ * CLI commands for exports and whole-archive backups:
+ *   export [--source archive|flight|climatology] [--format csv|json|package] [--table NAME] [--raw]
+ *          [--licence ID] [--title TEXT] [--flight ID] [--query "k=v&k=v"] [--out FILE]
+ *   backup <file>      restore <file>
+ * The CLI acts as the local user (sees every flight), like the other commands.
+ */
+import fs from "node:fs";
+import { Readable } from "node:stream";
+import { pipeline } from "node:stream/promises";
+import { parseArgs } from "node:util";
+import { getDbHandle } from "../db/index.ts";
+import { LOCAL_VIEWER } from "../auth/visibility.ts";
+import { createExport, ExportRequestError } from "../export/export.ts";
+import { backupArchive, restoreArchive, RestoreRefused } from "../export/backup.ts";
+
+export const EXPORT_HELP = `  export [options]             write a dataset (CSV table, JSON, or zip data package)
+      --source archive|flight|climatology   (default archive)
+      --format csv|json|package             (default package)
+      --table flights|runs|layers|levels|calibrations|raw-files|query-values   (CSV only; default flights)
+      --raw                                 include the raw logger files (package only)
+      --licence CC-BY-4.0|CC0-1.0|CC-BY-SA-4.0|ODC-By-1.0|ODbL-1.0   (default CC-BY-4.0)
+      --title TEXT  --flight ID (source flight)
+      --query "metric=tropopause-altitude&groupBy=season"   the Archive or Climatology page's parameters
+      --out FILE                            (default: a name like lapsebank-archive-20250101-120000.zip)
+  backup <file>                write the whole archive (every table and raw file) into one zip
+  restore <file>               load a backup into an EMPTY database (refuses otherwise)`;
+
+/** `export …`: returns the process exit code. */
+export async function runExport(args: string[]): Promise<number> {
+  const { values } = parseArgs({
+    args,
+    options: {
+      source: { type: "string" }, format: { type: "string" }, table: { type: "string" }, raw: { type: "boolean", default: false },
+      licence: { type: "string" }, title: { type: "string" }, flight: { type: "string" }, query: { type: "string", default: "" }, out: { type: "string" },
+    },
+  });
+  const record: Record<string, string> = {};
+  new URLSearchParams(values.query.replace(/^\?/, "")).forEach((value, key) => {
+    record[key] = record[key] ? `${record[key]},${value}` : value;
+  });
+  for (const key of ["source", "format", "table", "licence", "title", "flight"] as const) {
+    const value = values[key];
+    if (value !== undefined) record[key] = value;
+  }
+  if (values.raw) record.raw = "yes";
+  let output;
+  try {
+    output = await createExport(getDbHandle(), LOCAL_VIEWER, record);
+  } catch (error) {
+    if (error instanceof ExportRequestError) {
+      console.error(`export: ${error.message}`);
+      return error.status === 404 ? 1 : 2;
+    }
+    throw error;
+  }
+  const file = values.out ?? output.fileName;
+  await pipeline(Readable.from(output.body), fs.createWriteStream(file));
+  console.log(`Wrote ${file} (${output.scope.flightIds.length} flight${output.scope.flightIds.length === 1 ? "" : "s"}, ${(fs.statSync(file).size / 1048576).toFixed(1)} MB)`);
+  return 0;
+}
+
+/** `backup <file>`. */
+export async function runBackup(args: string[]): Promise<number> {
+  const { positionals } = parseArgs({ args, allowPositionals: true, options: {} });
+  const file = positionals[0];
+  if (!file || positionals.length > 1) {
+    console.error("backup: name one output file, e.g. backup lapsebank-backup.zip");
+    return 2;
+  }
+  const report = await backupArchive(getDbHandle().db, file, {
+    onProgress: (table, rows) => process.stdout.write(`\rBacking up ${table}: ${rows} rows`.padEnd(60)),
+  });
+  process.stdout.write("\n");
+  console.log(`Wrote ${file}: ${Object.entries(report.rowCounts).map(([t, n]) => `${t} ${n}`).join(", ")}`);
+  return 0;
+}
+
+/** `restore <file>`. */
+export async function runRestore(args: string[]): Promise<number> {
+  const { positionals } = parseArgs({ args, allowPositionals: true, options: {} });
+  const file = positionals[0];
+  if (!file || positionals.length > 1) {
+    console.error("restore: name one backup file, e.g. restore lapsebank-backup.zip");
+    return 2;
+  }
+  if (!fs.existsSync(file)) {
+    console.error(`restore: ${file} does not exist`);
+    return 2;
+  }
+  try {
+    const report = await restoreArchive(getDbHandle(), file, {
+      onProgress: (table, rows) => process.stdout.write(`\rRestoring ${table}: ${rows} rows`.padEnd(60)),
+    });
+    process.stdout.write("\n");
+    console.log(`Restored ${file}: ${Object.entries(report.rowCounts).map(([t, n]) => `${t} ${n}`).join(", ")}`);
+    return 0;
+  } catch (error) {
+    if (error instanceof RestoreRefused) {
+      console.error(`restore: ${error.message}`);
+      return 1;
+    }
+    throw error;
+  }
+}

@@ -1,0 +1,329 @@
+/**
+ * Exports as byte streams: one CSV table, one JSON document with every table and its data
+ * dictionary, or a zip data package (CSV tables, datapackage.json, CITATION.cff, README, optional
+ * raw files). Validation and the choice of flights happen before the first byte, so callers can
+ * answer 4xx; the body is then produced as the consumer reads it (pull-driven async generator),
+ * a page of flights at a time, so memory stays flat however large the export.
+ */
+import { createHash } from "node:crypto";
+import packageJson from "../../package.json" with { type: "json" };
+import type { DbHandle, Db } from "../db/index.ts";
+import type { Viewer } from "../auth/visibility.ts";
+import { csvLine, type CellValue } from "./csv.ts";
+import { ZipQueue } from "./zip-queue.ts";
+import { citationCff, dataPackageDescriptor, readmeText, tableSchema, type PackageFacts, type ResourceFacts } from "./package-metadata.ts";
+import {
+  ExportRequestError,
+  readCalibrations,
+  readFlightPages,
+  readLayers,
+  readLevels,
+  readRawBytes,
+  resolveExportScope,
+  type ExportScope,
+} from "./read.ts";
+import { exportOptionsSchema, licenceById, splitExportRecord, type ExportOptions } from "./request.ts";
+import {
+  CALIBRATIONS_TABLE,
+  FLIGHTS_TABLE,
+  LAYERS_TABLE,
+  LEVELS_TABLE,
+  RAW_FILES_TABLE,
+  RUNS_TABLE,
+  queryValuesTable,
+  type ExportField,
+  type ExportTable,
+  type FlightExportRow,
+  type RawFileExportRow,
+  type TableName,
+} from "./tables.ts";
+
+export interface ExportOutput {
+  fileName: string;
+  contentType: string;
+  options: ExportOptions;
+  scope: ExportScope;
+  body: AsyncIterable<Uint8Array>;
+}
+
+export interface ExportContext {
+  /** The export's creation time (tests pass a fixed one). */
+  now?: Date;
+  /** Rows of this many flights are read at once. */
+  flightPageSize?: number;
+}
+
+type DbLike = Pick<DbHandle, "db" | "engine">;
+
+export const LAPSEBANK_VERSION: string = packageJson.version;
+
+const encoder = new TextEncoder();
+
+/** Facts gathered while the flights stream past, for the package metadata. */
+interface Collected {
+  schools: Map<string, string>;
+  analysisVersions: Set<string>;
+  parameterSets: Map<string, unknown>;
+  calibrationIds: Set<string>;
+  flightCount: number;
+}
+
+function newCollected(): Collected {
+  return { schools: new Map(), analysisVersions: new Set(), parameterSets: new Map(), calibrationIds: new Set(), flightCount: 0 };
+}
+
+function collect(c: Collected, page: readonly FlightExportRow[]): void {
+  for (const f of page) {
+    c.flightCount++;
+    c.schools.set(f.schoolId, f.school.name);
+    if (f.run) {
+      c.analysisVersions.add(f.run.analysisVersion);
+      const key = JSON.stringify(f.run.parameters);
+      if (!c.parameterSets.has(key)) c.parameterSets.set(key, f.run.parameters);
+      if (f.run.calibrationId) c.calibrationIds.add(f.run.calibrationId);
+    }
+  }
+}
+
+/** A field's value as a CSV cell. */
+function cellOf<R>(field: ExportField<R>, row: R): CellValue {
+  const value = field.get(row);
+  if (value === null || value === undefined) return null;
+  if (field.type === "object" || field.type === "array") return { json: value };
+  if (value instanceof Date || typeof value === "string" || typeof value === "number" || typeof value === "boolean") return value;
+  return String(value);
+}
+
+/** A field's value in a JSON record (times as ISO 8601 UTC text). */
+function jsonValueOf<R>(field: ExportField<R>, row: R): unknown {
+  const value = field.get(row);
+  if (value === undefined) return null;
+  return value instanceof Date ? value.toISOString() : value;
+}
+
+function safeFileName(name: string): string {
+  const cleaned = name.replace(/[^A-Za-z0-9._-]+/g, "_").replace(/^\.+/, "");
+  return cleaned || "raw";
+}
+
+function rawPath(flightId: string, name: string): string {
+  return `raw/${flightId}/${safeFileName(name)}`;
+}
+
+function rawFileRow(f: FlightExportRow): RawFileExportRow {
+  return { flightId: f.id, rawFileId: f.rawFile.id, name: f.rawFile.name, sha256: f.rawFile.sha256, sizeBytes: f.rawFile.sizeBytes, path: rawPath(f.id, f.rawFile.name) };
+}
+
+/** The row pages of one table for an export scope. */
+function tablePages(db: Db, viewer: Viewer, scope: ExportScope, name: TableName, pageSize: number, collected: Collected | null): { table: ExportTable<never>; pages: () => AsyncGenerator<unknown[]> } {
+  const flights = () => readFlightPages(db, viewer, scope.flightIds, pageSize);
+  const as = <R>(table: ExportTable<R>, pages: () => AsyncGenerator<R[]>) => ({ table: table as unknown as ExportTable<never>, pages: pages as () => AsyncGenerator<unknown[]> });
+  switch (name) {
+    case "flights":
+      return as(FLIGHTS_TABLE, async function* () {
+        for await (const page of flights()) {
+          if (collected) collect(collected, page);
+          yield page;
+        }
+      });
+    case "runs":
+      return as(RUNS_TABLE, async function* () {
+        for await (const page of flights()) yield page.flatMap((f) => (f.run ? [f.run] : []));
+      });
+    case "layers":
+      return as(LAYERS_TABLE, async function* () {
+        for await (const page of flights()) yield await readLayers(db, page);
+      });
+    case "levels":
+      return as(LEVELS_TABLE, async function* () {
+        for await (const page of flights()) yield await readLevels(db, page);
+      });
+    case "calibrations":
+      return as(CALIBRATIONS_TABLE, async function* () {
+        let ids: string[];
+        if (collected) {
+          ids = [...collected.calibrationIds].sort();
+        } else {
+          const set = new Set<string>();
+          for await (const page of flights()) for (const f of page) if (f.run?.calibrationId) set.add(f.run.calibrationId);
+          ids = [...set].sort();
+        }
+        for (let i = 0; i < ids.length; i += 500) yield await readCalibrations(db, ids.slice(i, i + 500));
+      });
+    case "raw-files":
+      return as(RAW_FILES_TABLE, async function* () {
+        for await (const page of flights()) yield page.map(rawFileRow);
+      });
+    case "query-values": {
+      const metric = scope.description.metric ?? { label: "metric", unit: "" };
+      const values = scope.queryValues ?? [];
+      return as(queryValuesTable(metric.label, metric.unit), async function* () {
+        for (let i = 0; i < values.length; i += 1000) yield values.slice(i, i + 1000);
+      });
+    }
+  }
+}
+
+/** CSV text of a table, header first, then one chunk per page of rows. */
+async function* csvChunks(table: ExportTable<never>, pages: AsyncIterable<unknown[]>, counter: { rows: number }): AsyncGenerator<Uint8Array> {
+  const fields = table.fields as ReadonlyArray<ExportField<unknown>>;
+  yield encoder.encode(csvLine(fields.map((f) => f.name)));
+  for await (const page of pages) {
+    let text = "";
+    for (const row of page) text += csvLine(fields.map((f) => cellOf(f, row)));
+    counter.rows += page.length;
+    if (text) yield encoder.encode(text);
+  }
+}
+
+function timestampForName(date: Date): string {
+  return date.toISOString().slice(0, 19).replace(/[-:]/g, "").replace("T", "-");
+}
+
+/**
+ * Validates an export request (search-param record: the export's keys plus the source query's own
+ * parameters), resolves its flights for the viewer and returns the stream to send.
+ * @throws ExportRequestError (422 bad parameters, 404 hidden or unknown flight).
+ */
+export async function createExport(handle: DbLike, viewer: Viewer, record: Record<string, string>, context: ExportContext = {}): Promise<ExportOutput> {
+  const { exportRecord, queryRecord } = splitExportRecord(record);
+  const parsed = exportOptionsSchema.safeParse(exportRecord);
+  if (!parsed.success) {
+    throw new ExportRequestError(422, "invalid-request", parsed.error.issues.map((i) => `${i.path.join(".") || "request"}: ${i.message}`).join("; "));
+  }
+  const options = parsed.data;
+  const scope = await resolveExportScope(handle, viewer, options, queryRecord);
+  const now = context.now ?? new Date();
+  const pageSize = context.flightPageSize ?? 100;
+  const base = `lapsebank-${options.source}-${timestampForName(now)}`;
+  switch (options.format) {
+    case "csv": {
+      const { table, pages } = tablePages(handle.db, viewer, scope, options.table, pageSize, null);
+      return { fileName: `${base}-${table.name}.csv`, contentType: "text/csv; charset=utf-8", options, scope, body: csvChunks(table, pages(), { rows: 0 }) };
+    }
+    case "json":
+      return { fileName: `${base}.json`, contentType: "application/json; charset=utf-8", options, scope, body: jsonChunks(handle.db, viewer, scope, options, now, pageSize) };
+    case "package":
+      return { fileName: `${base}.zip`, contentType: "application/zip", options, scope, body: packageChunks(handle.db, viewer, scope, options, now, pageSize) };
+  }
+}
+
+function packageTables(scope: ExportScope, options: ExportOptions): TableName[] {
+  const names: TableName[] = ["flights", "runs", "layers", "levels", "calibrations"];
+  if (options.raw) names.push("raw-files");
+  if (scope.queryValues) names.push("query-values");
+  return names;
+}
+
+async function programName(db: Db): Promise<string> {
+  const settings = await db.programSettings.findUnique({ where: { id: 1 }, select: { programName: true } });
+  return settings?.programName ?? "Lapsebank program";
+}
+
+function defaultTitle(scope: ExportScope, now: Date): string {
+  const what = scope.description.source === "climatology" ? "climatology query" : scope.description.source === "flight" ? "flight" : "archive selection";
+  return `Lapsebank temperature soundings: ${what}, exported ${now.toISOString().slice(0, 10)}`;
+}
+
+function packageFacts(options: ExportOptions, scope: ExportScope, collected: Collected, now: Date, program: string, resources: ResourceFacts[]): PackageFacts {
+  return {
+    name: `lapsebank-${options.source}-${timestampForName(now)}`.toLowerCase(),
+    title: options.title ?? defaultTitle(scope, now),
+    createdAtUtc: now,
+    lapsebankVersion: LAPSEBANK_VERSION,
+    programName: program,
+    licence: licenceById(options.licence),
+    query: scope.description,
+    schools: [...collected.schools.entries()].map(([id, name]) => ({ id, name })).sort((a, b) => a.name.localeCompare(b.name)),
+    analysisVersions: [...collected.analysisVersions].sort(),
+    analysisParameterSets: [...collected.parameterSets.values()],
+    calibrationIds: [...collected.calibrationIds].sort(),
+    flightCount: collected.flightCount,
+    includesRawFiles: options.raw,
+    resources,
+  };
+}
+
+/** One JSON document: metadata, the data dictionary (Table Schemas), then every table as an array of records. */
+async function* jsonChunks(db: Db, viewer: Viewer, scope: ExportScope, options: ExportOptions, now: Date, pageSize: number): AsyncGenerator<Uint8Array> {
+  const collected = newCollected();
+  const names = packageTables(scope, { ...options, raw: false });
+  const tables = names.map((name) => tablePages(db, viewer, scope, name, pageSize, collected));
+  const head = {
+    format: "lapsebank-export",
+    lapsebankVersion: LAPSEBANK_VERSION,
+    created: now.toISOString(),
+    title: options.title ?? defaultTitle(scope, now),
+    licence: licenceById(options.licence),
+    query: scope.description,
+    dataDictionary: Object.fromEntries(tables.map(({ table }) => [table.name, tableSchema(table)])),
+  };
+  yield encoder.encode(`{"lapsebank":${JSON.stringify(head)},"tables":{`);
+  for (const [t, { table, pages }] of tables.entries()) {
+    const fields = table.fields as ReadonlyArray<ExportField<unknown>>;
+    yield encoder.encode(`${t ? "," : ""}${JSON.stringify(table.name)}:[`);
+    let first = true;
+    for await (const page of pages()) {
+      let text = "";
+      for (const row of page) {
+        const record: Record<string, unknown> = {};
+        for (const f of fields) record[f.name] = jsonValueOf(f, row);
+        text += (first ? "" : ",") + JSON.stringify(record);
+        first = false;
+      }
+      if (text) yield encoder.encode(text);
+    }
+    yield encoder.encode("]");
+  }
+  const provenance = {
+    schools: [...collected.schools.entries()].map(([id, name]) => ({ id, name })),
+    analysisVersions: [...collected.analysisVersions].sort(),
+    analysisParameters: [...collected.parameterSets.values()],
+    calibrationsUsed: [...collected.calibrationIds].sort(),
+    flightCount: collected.flightCount,
+  };
+  yield encoder.encode(`},"provenance":${JSON.stringify(provenance)}}\n`);
+}
+
+/** The zip data package, streamed. Tables first (gathering provenance), then the descriptor, citation and README. */
+async function* packageChunks(db: Db, viewer: Viewer, scope: ExportScope, options: ExportOptions, now: Date, pageSize: number): AsyncGenerator<Uint8Array> {
+  const queue = new ZipQueue(now);
+  const collected = newCollected();
+  const resources: ResourceFacts[] = [];
+
+  for (const name of packageTables(scope, options)) {
+    const { table, pages } = tablePages(db, viewer, scope, name, pageSize, collected);
+    const path = `data/${table.name}.csv`;
+    const entry = queue.entry(`${path}`, 1);
+    const hash = createHash("sha256");
+    const counter = { rows: 0 };
+    let bytes = 0;
+    for await (const chunk of csvChunks(table, pages(), counter)) {
+      hash.update(chunk);
+      bytes += chunk.length;
+      entry.push(chunk, false);
+      yield* queue.take();
+    }
+    entry.push(new Uint8Array(0), true);
+    yield* queue.take();
+    resources.push({ table, path, bytes, sha256: hash.digest("hex"), rowCount: counter.rows });
+  }
+
+  if (options.raw) {
+    for await (const page of readFlightPages(db, viewer, scope.flightIds, pageSize)) {
+      for (const f of page) {
+        queue.entry(`${rawPath(f.id, f.rawFile.name)}`, 1).push(await readRawBytes(db, f.rawFile.id), true);
+        yield* queue.take();
+      }
+    }
+  }
+
+  const facts = packageFacts(options, scope, collected, now, await programName(db), resources);
+  queue.text(`datapackage.json`, `${JSON.stringify(dataPackageDescriptor(facts), null, 2)}\n`);
+  queue.text(`CITATION.cff`, citationCff(facts));
+  queue.text(`README.md`, readmeText(facts));
+  queue.end();
+  yield* queue.take();
+}
+
+export { ExportRequestError };
