@@ -16,12 +16,14 @@ afterAll(() => {
   for (const dir of tempDirs) fs.rmSync(dir, { recursive: true, force: true });
 });
 
-function runFixture(files: Record<string, string>): { status: number | null; lines: string[]; stdout: string } {
+function runFixture(files: Record<string, string>, options: { globalSetup?: string } = {}): { status: number | null; lines: string[]; stdout: string } {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), "lapsebank-reporter-"));
   tempDirs.push(dir);
+  const setup = options.globalSetup === undefined ? "" : ` globalSetup: ["./global-setup.mjs"],`;
+  if (options.globalSetup !== undefined) fs.writeFileSync(path.join(dir, "global-setup.mjs"), options.globalSetup);
   fs.writeFileSync(
     path.join(dir, "vitest.config.mjs"),
-    `export default { test: { globals: true, include: ["*.test.js"], reporters: ["default", ${JSON.stringify(reporterPath)}] } };\n`,
+    `export default { test: { globals: true, include: ["*.test.js"],${setup} reporters: ["default", ${JSON.stringify(reporterPath)}] } };\n`,
   );
   for (const [name, text] of Object.entries(files)) fs.writeFileSync(path.join(dir, name), text);
   // A nested vitest must not think it runs inside this one's worker.
@@ -57,5 +59,14 @@ describe("summary reporter", () => {
     expect(run.status, run.stdout).toBe(1);
     // [D] passed p1 p2 ok = 3; failed f1 + hooked suite + broken file + afterAll = 4; skipped s1 t1 h1 h2 = 4
     expect(run.lines.filter((line) => SUMMARY_LINE.test(line))).toEqual(["3 passed, 4 failed, 4 skipped"]);
+  });
+
+  it("never reports 0 failed when the run itself failed before any test (global set-up threw)", () => {
+    const run = runFixture(
+      { "ok.test.js": `test("one", () => {});\n` },
+      { globalSetup: `export default function () { throw new Error("no server"); }\n` },
+    );
+    // [D] vitest ends this run as "failed" with no test modules and no unhandled errors
+    expect(run.lines.filter((line) => SUMMARY_LINE.test(line))).toEqual(["0 passed, 1 failed, 0 skipped"]);
   });
 });

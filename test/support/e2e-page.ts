@@ -13,7 +13,7 @@ export async function cellText(row: Locator, index: number): Promise<string> {
 /** Index of the column whose header reads `header` in the table of region `regionName`. */
 export async function columnIndex(page: Page, regionName: string, header: string): Promise<number> {
   const headers = await page.getByRole("region", { name: regionName }).getByRole("columnheader").allInnerTexts();
-  const index = headers.findIndex((text) => text.trim() === header);
+  const index = headers.findIndex((text) => text.replace(/\s+/g, " ").trim() === header);
   if (index < 0) throw new Error(`no column "${header}" in ${regionName}; columns are: ${headers.join(" | ")}`);
   return index;
 }

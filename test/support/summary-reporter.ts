@@ -11,9 +11,15 @@ export interface RunCounts {
  * Counts a finished run for CI. Every test case is passed, failed or skipped (skip, todo, `only`
  * elsewhere, or never run because the run stopped). A file or suite that failed on its own — an
  * import error, a failing beforeAll/afterAll — counts as one more failure when none of its tests
- * failed, and so does each unhandled error: the failed count is zero only when the run was clean.
+ * failed, and so does each unhandled error. A run that vitest ends as failed or interrupted with
+ * none of these (a global set-up that threw, no test files) counts one failure: the failed count
+ * is zero only when the run was clean.
  */
-export function countRun(testModules: ReadonlyArray<TestModule>, unhandledErrors: ReadonlyArray<SerializedError>): RunCounts {
+export function countRun(
+  testModules: ReadonlyArray<TestModule>,
+  unhandledErrors: ReadonlyArray<SerializedError>,
+  reason: TestRunEndReason,
+): RunCounts {
   const counts: RunCounts = { passed: 0, failed: 0, skipped: 0 };
   for (const testModule of testModules) {
     for (const test of testModule.children.allTests()) {
@@ -25,6 +31,7 @@ export function countRun(testModules: ReadonlyArray<TestModule>, unhandledErrors
     counts.failed += groupFailuresWithoutFailedTest(testModule);
   }
   counts.failed += unhandledErrors.length;
+  if (reason !== "passed" && counts.failed === 0) counts.failed = 1;
   return counts;
 }
 
@@ -48,7 +55,7 @@ function hasFailedTest(tests: Iterable<TestCase>): boolean {
 
 /** Vitest reporter that prints `<passed> passed, <failed> failed, <skipped> skipped` once, at the end of a run. */
 export default class SummaryReporter implements Reporter {
-  onTestRunEnd(testModules: ReadonlyArray<TestModule>, unhandledErrors: ReadonlyArray<SerializedError>, _reason: TestRunEndReason): void {
-    process.stdout.write(`\n${formatRunCounts(countRun(testModules, unhandledErrors))}\n`);
+  onTestRunEnd(testModules: ReadonlyArray<TestModule>, unhandledErrors: ReadonlyArray<SerializedError>, reason: TestRunEndReason): void {
+    process.stdout.write(`\n${formatRunCounts(countRun(testModules, unhandledErrors, reason))}\n`);
   }
 }
