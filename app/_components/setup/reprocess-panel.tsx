@@ -78,8 +78,8 @@ export function ReprocessPanel({ flights, defaultReason }: { flights: ReprocessF
 
   if (flights.length === 0) return <p className="notice">No flights are affected.</p>;
   return (
-    <section aria-labelledby={`${uid}-t`}>
-      <h2 id={`${uid}-t`}>Affected flights ({flights.length})</h2>
+    <div>
+      <h2>Affected flights ({flights.length})</h2>
       <div className="form-grid">
         <div className="field">
           <label htmlFor={`${uid}-reason`}>Reason recorded with the new runs</label>
@@ -141,6 +141,6 @@ export function ReprocessPanel({ flights, defaultReason }: { flights: ReprocessF
           </tbody>
         </table>
       </div>
-    </section>
+    </div>
   );
 }

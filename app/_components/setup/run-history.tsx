@@ -12,8 +12,8 @@ const two = (n: number | null) => (n === null ? "—" : n.toFixed(2));
  */
 export function RunHistoryPanel({ history, canReanalyse = true }: { history: RunHistory; canReanalyse?: boolean }) {
   return (
-    <section aria-labelledby="run-history-title">
-      <h2 id="run-history-title">Run history</h2>
+    <div>
+      <h2>Run history</h2>
       <div className="table-wrap" role="region" aria-label="Run history" tabIndex={0}>
         <table>
           <thead>
@@ -46,6 +46,6 @@ export function RunHistoryPanel({ history, canReanalyse = true }: { history: Run
         </table>
       </div>
       {canReanalyse && <ReanalyseButton flightId={history.flightId} />}
-    </section>
+    </div>
   );
 }

@@ -1,0 +1,23 @@
+import { analysisParametersSchema } from "@/lib/ingest/schemas";
+import { selectFlights } from "@/lib/ingest";
+import { getDb } from "@/lib/db";
+import { setProgramParameters } from "@/lib/ingest/setup-more";
+import { getProgramSettings } from "@/lib/query/setup-pages";
+import { jsonOk, withErrors } from "../../_lib/respond";
+import { readJson, refuseUnlessAllowed } from "../_lib/setup-api";
+
+export const runtime = "nodejs";
+
+/** GET /api/v1/setup/parameters: the program's analysis parameters and the built-in defaults. */
+export const GET = withErrors(async () => jsonOk(await getProgramSettings()));
+
+/** PUT /api/v1/setup/parameters {binSizeM, tropopauseSearchFloorM, lagCorrection, smoothingWindowS, …}: recorded with every later run. */
+export const PUT = withErrors(async (request: Request) => {
+  const refused = await refuseUnlessAllowed(null);
+  if (refused) return refused;
+  const body = await readJson(request, analysisParametersSchema);
+  if ("response" in body) return body.response;
+  const db = getDb();
+  const parameters = await setProgramParameters(db, body.data, { userId: null, label: "api" });
+  return jsonOk({ parameters, affectedFlightIds: await selectFlights(db, { all: true }), reprocess: { all: true } });
+});

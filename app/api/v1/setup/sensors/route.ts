@@ -1,0 +1,27 @@
+import { createSensor, sensorInputSchema } from "@/lib/ingest";
+import { getDb } from "@/lib/db";
+import { listSetupSensors } from "@/lib/query/setup-pages";
+import { jsonOk, withErrors } from "../../_lib/respond";
+import { idParam, readJson, refuseUnlessAllowed, setupFailure } from "../_lib/setup-api";
+
+export const runtime = "nodejs";
+
+/** GET /api/v1/setup/sensors[?school=ID] */
+export const GET = withErrors(async (request: Request) => {
+  const school = idParam(request, "school");
+  const sensors = await listSetupSensors();
+  return jsonOk({ sensors: school ? sensors.filter((s) => s.schoolId === school) : sensors });
+});
+
+/** POST /api/v1/setup/sensors {schoolId, serial, kind, timeConstantS?, notes?, payloadId?, mountedFromUtc?, mountedToUtc?} */
+export const POST = withErrors(async (request: Request) => {
+  const body = await readJson(request, sensorInputSchema);
+  if ("response" in body) return body.response;
+  const refused = await refuseUnlessAllowed(body.data.schoolId);
+  if (refused) return refused;
+  try {
+    return jsonOk({ sensor: await createSensor(getDb(), body.data) }, 201);
+  } catch (error) {
+    return setupFailure(error);
+  }
+});

@@ -1,0 +1,29 @@
+import { getDb } from "@/lib/db";
+import { siteUpdateSchema, updateSite } from "@/lib/ingest/setup-more";
+import { getSetupSite } from "@/lib/query/setup-pages";
+import { jsonOk, notFoundError, withErrors } from "../../../_lib/respond";
+import { readJson, refuseUnlessAllowed, setupFailure } from "../../_lib/setup-api";
+
+export const runtime = "nodejs";
+
+type Context = { params: Promise<{ id: string }> };
+
+export const GET = withErrors(async (_request: Request, { params }: Context) => {
+  const site = await getSetupSite((await params).id);
+  return site ? jsonOk({ site }) : notFoundError("Site");
+});
+
+/** PUT /api/v1/setup/sites/ID {name, latitudeDeg, longitudeDeg, elevationM, timeZone} */
+export const PUT = withErrors(async (request: Request, { params }: Context) => {
+  const existing = await getSetupSite((await params).id);
+  if (!existing) return notFoundError("Site");
+  const refused = await refuseUnlessAllowed(existing.schoolId);
+  if (refused) return refused;
+  const body = await readJson(request, siteUpdateSchema);
+  if ("response" in body) return body.response;
+  try {
+    return jsonOk({ site: await updateSite(getDb(), existing.id, body.data, { userId: null, label: "api" }) });
+  } catch (error) {
+    return setupFailure(error);
+  }
+});
