@@ -11,6 +11,7 @@ import type { DbHandle, Db } from "../db/index.ts";
 import type { Viewer } from "../auth/visibility.ts";
 import { csvLine, type CellValue } from "./csv.ts";
 import { ZipQueue } from "./zip-queue.ts";
+import { openLevelReader } from "./level-reader.ts";
 import { citationCff, dataPackageDescriptor, readmeText, tableSchema, type PackageFacts, type ResourceFacts } from "./package-metadata.ts";
 import {
   ExportRequestError,
@@ -53,7 +54,7 @@ export interface ExportContext {
   flightPageSize?: number;
 }
 
-type DbLike = Pick<DbHandle, "db" | "engine">;
+type DbLike = Pick<DbHandle, "db" | "engine" | "url">;
 
 export const LAPSEBANK_VERSION: string = packageJson.version;
 
@@ -115,7 +116,8 @@ function rawFileRow(f: FlightExportRow): RawFileExportRow {
 }
 
 /** The row pages of one table for an export scope. */
-function tablePages(db: Db, viewer: Viewer, scope: ExportScope, name: TableName, pageSize: number, collected: Collected | null): { table: ExportTable<never>; pages: () => AsyncGenerator<unknown[]> } {
+function tablePages(handle: DbLike, viewer: Viewer, scope: ExportScope, name: TableName, pageSize: number, collected: Collected | null): { table: ExportTable<never>; pages: () => AsyncGenerator<unknown[]> } {
+  const db = handle.db;
   const flights = () => readFlightPages(db, viewer, scope.flightIds, pageSize);
   const as = <R>(table: ExportTable<R>, pages: () => AsyncGenerator<R[]>) => ({ table: table as unknown as ExportTable<never>, pages: pages as () => AsyncGenerator<unknown[]> });
   switch (name) {
@@ -136,7 +138,12 @@ function tablePages(db: Db, viewer: Viewer, scope: ExportScope, name: TableName,
       });
     case "levels":
       return as(LEVELS_TABLE, async function* () {
-        for await (const page of flights()) yield await readLevels(db, page);
+        const reader = openLevelReader(handle);
+        try {
+          for await (const page of flights()) yield await readLevels(reader, page);
+        } finally {
+          await reader.close();
+        }
       });
     case "calibrations":
       return as(CALIBRATIONS_TABLE, async function* () {
@@ -198,13 +205,13 @@ export async function createExport(handle: DbLike, viewer: Viewer, record: Recor
   const base = `lapsebank-${options.source}-${timestampForName(now)}`;
   switch (options.format) {
     case "csv": {
-      const { table, pages } = tablePages(handle.db, viewer, scope, options.table, pageSize, null);
+      const { table, pages } = tablePages(handle, viewer, scope, options.table, pageSize, null);
       return { fileName: `${base}-${table.name}.csv`, contentType: "text/csv; charset=utf-8", options, scope, body: csvChunks(table, pages(), { rows: 0 }) };
     }
     case "json":
-      return { fileName: `${base}.json`, contentType: "application/json; charset=utf-8", options, scope, body: jsonChunks(handle.db, viewer, scope, options, now, pageSize) };
+      return { fileName: `${base}.json`, contentType: "application/json; charset=utf-8", options, scope, body: jsonChunks(handle, viewer, scope, options, now, pageSize) };
     case "package":
-      return { fileName: `${base}.zip`, contentType: "application/zip", options, scope, body: packageChunks(handle.db, viewer, scope, options, now, pageSize) };
+      return { fileName: `${base}.zip`, contentType: "application/zip", options, scope, body: packageChunks(handle, viewer, scope, options, now, pageSize) };
   }
 }
 
@@ -245,10 +252,10 @@ function packageFacts(options: ExportOptions, scope: ExportScope, collected: Col
 }
 
 /** One JSON document: metadata, the data dictionary (Table Schemas), then every table as an array of records. */
-async function* jsonChunks(db: Db, viewer: Viewer, scope: ExportScope, options: ExportOptions, now: Date, pageSize: number): AsyncGenerator<Uint8Array> {
+async function* jsonChunks(handle: DbLike, viewer: Viewer, scope: ExportScope, options: ExportOptions, now: Date, pageSize: number): AsyncGenerator<Uint8Array> {
   const collected = newCollected();
   const names = packageTables(scope, { ...options, raw: false });
-  const tables = names.map((name) => tablePages(db, viewer, scope, name, pageSize, collected));
+  const tables = names.map((name) => tablePages(handle, viewer, scope, name, pageSize, collected));
   const head = {
     format: "lapsebank-export",
     lapsebankVersion: LAPSEBANK_VERSION,
@@ -286,13 +293,14 @@ async function* jsonChunks(db: Db, viewer: Viewer, scope: ExportScope, options: 
 }
 
 /** The zip data package, streamed. Tables first (gathering provenance), then the descriptor, citation and README. */
-async function* packageChunks(db: Db, viewer: Viewer, scope: ExportScope, options: ExportOptions, now: Date, pageSize: number): AsyncGenerator<Uint8Array> {
+async function* packageChunks(handle: DbLike, viewer: Viewer, scope: ExportScope, options: ExportOptions, now: Date, pageSize: number): AsyncGenerator<Uint8Array> {
+  const db = handle.db;
   const queue = new ZipQueue(now);
   const collected = newCollected();
   const resources: ResourceFacts[] = [];
 
   for (const name of packageTables(scope, options)) {
-    const { table, pages } = tablePages(db, viewer, scope, name, pageSize, collected);
+    const { table, pages } = tablePages(handle, viewer, scope, name, pageSize, collected);
     const path = `data/${table.name}.csv`;
     const entry = queue.entry(`${path}`, 1);
     const hash = createHash("sha256");

@@ -11,6 +11,7 @@ import { archiveFilterSchema, type ArchiveFilter } from "../query/archive-filter
 import { ClimatologyQueryError, getClimatology } from "../query/climatology-core.ts";
 import { climatologySearchParams, parseClimatologyQuery } from "../query/climatology-params.ts";
 import type { ExportOptions } from "./request.ts";
+import type { LevelReader } from "./level-reader.ts";
 import type { CalibrationExportRow, FlightExportRow, LayerExportRow, LevelExportRow, QueryValueRow } from "./tables.ts";
 
 /** A request the archive cannot answer as asked; `status` is the HTTP status the API answers with. */
@@ -201,11 +202,14 @@ export async function readLayers(db: Db, page: readonly FlightExportRow[]): Prom
 }
 
 /** Binned levels of the current runs of a page of flights, by run, phase and altitude. */
-export async function readLevels(db: Db, page: readonly FlightExportRow[]): Promise<LevelExportRow[]> {
+export async function readLevels(reader: LevelReader, page: readonly FlightExportRow[]): Promise<LevelExportRow[]> {
   const flightOfRun = new Map(page.flatMap((f) => (f.run ? [[f.run.id, f.id] as const] : [])));
   if (flightOfRun.size === 0) return [];
-  const levels = await db.profileLevel.findMany({ where: { runId: { in: [...flightOfRun.keys()] } }, orderBy: [{ runId: "asc" }, { phase: "asc" }, { altitudeM: "asc" }] });
-  return levels.map((l) => ({ ...l, flightId: flightOfRun.get(l.runId) ?? "" }));
+  const tuples = await reader.read([...flightOfRun.keys()]);
+  return tuples.map((t) => ({
+    flightId: flightOfRun.get(t[0]) ?? "", runId: t[0], phase: t[1], altitudeM: t[2], baseM: t[3], topM: t[4], sampleCount: t[5],
+    temperatureK: t[6], temperatureSdK: t[7], pressureHpa: t[8], relativeHumidityPct: t[9],
+  }));
 }
 
 /** The calibration records with these ids, with their sensor. */

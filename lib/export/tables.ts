@@ -57,7 +57,7 @@ export interface FlightExportRow {
   run: (AnalysisRun & { summary: FlightSummary | null }) | null;
 }
 
-export interface LevelExportRow extends ProfileLevel {
+export interface LevelExportRow extends Omit<ProfileLevel, "id"> {
   flightId: string;
 }
 
