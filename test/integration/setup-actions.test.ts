@@ -1,0 +1,137 @@
+import { afterAll, beforeAll, describe, expect, test, vi } from "vitest";
+import { DEFAULT_ANALYSIS_PARAMETERS } from "../../lib/analysis/types.ts";
+import { ingestFlightFile } from "../../lib/ingest/index.ts";
+import { LINEAR_10BIT_CALIBRATION } from "../../seed/demo-files.ts";
+import { makeFlightFile, setUpSchool } from "../support/flight-files.ts";
+import { createTestDatabase, type TestDatabase } from "../support/test-databases.ts";
+
+// Server actions revalidate Next's cache; outside a request there is nothing to revalidate.
+vi.mock("next/cache", () => ({ revalidatePath: vi.fn() }));
+
+const K0 = 273.15; // 0 °C in K, SI definition
+
+// The actions use the app's database handle (DATABASE_URL), so this file runs on SQLite, pointing
+// DATABASE_URL at its own fresh database before the first action call.
+describe("Setup server actions (SQLite)", () => {
+  let database: TestDatabase;
+  let ids: Awaited<ReturnType<typeof setUpSchool>>;
+  let flightId: string;
+  let actions: typeof import("../../app/setup/actions.ts");
+  let pages: typeof import("../../lib/query/setup-pages.ts");
+
+  beforeAll(async () => {
+    database = await createTestDatabase("sqlite");
+    process.env.DATABASE_URL = database.url;
+    const { getDbHandle } = await import("../../lib/db/index.ts");
+    expect(getDbHandle().url).toBe(database.url);
+    ids = await setUpSchool(database.db, "Action Test School");
+    const file = makeFlightFile({ seed: 41 });
+    flightId = (await ingestFlightFile(database.db, {
+      file: { name: "action-flight.csv", bytes: file.bytes },
+      metadata: { schoolId: ids.school.id, siteId: ids.site.id, layoutId: ids.layout.id, sensorId: ids.sensor.id, launchAtUtc: file.launchAtUtc.toISOString() },
+    })).flightId;
+    actions = await import("../../app/setup/actions.ts");
+    pages = await import("../../lib/query/setup-pages.ts");
+  });
+  afterAll(async () => {
+    const { getDbHandle } = await import("../../lib/db/index.ts");
+    await getDbHandle().db.$disconnect();
+    await database?.drop();
+  });
+
+  test("an overlapping calibration comes back as a form error with the clear message; nothing is stored", async () => {
+    const result = await actions.saveCalibration({
+      calibration: { sensorId: ids.sensor.id, spec: LINEAR_10BIT_CALIBRATION, validFromUtc: "2024-01-01T00:00:00Z", validToUtc: null, method: "two-point", notes: "" },
+    });
+    expect(result.ok).toBe(false);
+    if (result.ok) return;
+    expect(result.message).toContain(`overlaps calibration ${ids.calibration.id}`);
+    expect(result.message).toContain("Close that one first or choose other dates");
+    expect(result.fieldErrors.validFromUtc?.[0]).toBe(result.message);
+    expect(await database.db.calibration.count({ where: { sensorId: ids.sensor.id } })).toBe(1);
+  });
+
+  test("an incomplete calibration names the field", async () => {
+    const result = await actions.saveCalibration({
+      calibration: { sensorId: ids.sensor.id, spec: { ...LINEAR_10BIT_CALIBRATION, sensor: { kind: "linear-voltage", scaleMvPerK: 0, offsetV: 0 } }, validFromUtc: "2031-01-01T00:00:00Z", method: "two-point" },
+    });
+    expect(result.ok).toBe(false);
+    if (!result.ok) expect(Object.keys(result.fieldErrors)).toContain("spec.sensor.scaleMvPerK");
+  });
+
+  test("fit two pairs, save as a correction of the calibration, re-analyse the affected flight, and see what changed in the run history", async () => {
+    // [D] the nominal model reads 560 counts as 273.4375 K and 600 counts as 292.96875 K;
+    // references 1.2 K colder at both points give gain 1 and offset −1.2 K
+    const fit = await actions.fitCalibrationPairs({
+      template: LINEAR_10BIT_CALIBRATION,
+      points: [{ raw: 560, referenceC: 273.4375 - 1.2 - K0 }, { raw: 600, referenceC: 292.96875 - 1.2 - K0 }],
+    });
+    expect(fit.ok).toBe(true);
+    if (!fit.ok) return;
+    expect(fit.data.calibration.correction?.gain).toBeCloseTo(1, 9);
+    expect(fit.data.calibration.correction?.offsetK).toBeCloseTo(-1.2, 9);
+
+    const saved = await actions.saveCalibration({
+      id: ids.calibration.id,
+      calibration: {
+        sensorId: ids.sensor.id, spec: fit.data.calibration, validFromUtc: "2020-01-01T00:00:00Z", validToUtc: null, method: fit.data.method,
+        referenceReadings: fit.data.points.map((p) => ({ raw: p.raw, temperatureK: p.referenceC + K0 })), notes: "ice bath and room",
+      },
+    });
+    expect(saved).toEqual({ ok: true, data: { id: ids.calibration.id, sensorId: ids.sensor.id, affectedFlightCount: 1 } });
+
+    const before = await database.db.analysisRun.findFirstOrThrow({ where: { flightId, isCurrent: true }, include: { summary: true } });
+    const outcome = await actions.reprocessOneFlight({ flightId, reason: "calibration corrected" });
+    expect(outcome.ok && outcome.data.status).toBe("reprocessed");
+    const again = await actions.reprocessOneFlight({ flightId, reason: "calibration corrected" });
+    expect(again.ok && again.data.status).toBe("up-to-date");
+
+    const history = await pages.getRunHistory({ kind: "local" }, flightId, database.db);
+    expect(history?.runs.map((r) => [r.reason, r.isCurrent])).toEqual([["calibration corrected", true], ["upload", false]]);
+    const change = history?.runs[0]?.change;
+    expect(change?.calibrationChanged).toBe(true);
+    expect(change?.changedParameters).toEqual([]);
+    // [D] a −1.2 K offset moves the surface temperature by −1.2 K (gain 1); tolerance for the lenient float path
+    expect(change?.surfaceTemperatureDeltaK).toBeCloseTo(-1.2, 6);
+    expect(change?.surfaceTemperatureDeltaK).toBeCloseTo((history?.runs[0]?.surfaceTemperatureK ?? 0) - (before.summary?.surfaceTemperatureK ?? 0), 9);
+    expect(history?.runs[1]?.change).toBeNull();
+  });
+
+  test("saved parameters are recorded in the next run and named in its change", async () => {
+    const saved = await actions.saveProgramParameters({ ...DEFAULT_ANALYSIS_PARAMETERS, binSizeM: 200 });
+    expect(saved).toEqual({ ok: true, data: { affectedFlightCount: 1 } });
+    const refused = await actions.saveProgramParameters({ ...DEFAULT_ANALYSIS_PARAMETERS, binSizeM: 5 });
+    expect(refused.ok).toBe(false);
+    if (!refused.ok) expect(Object.keys(refused.fieldErrors)).toEqual(["binSizeM"]);
+
+    const outcome = await actions.reprocessOneFlight({ flightId, reason: "parameters changed" });
+    expect(outcome.ok && outcome.data.status).toBe("reprocessed");
+    const run = await database.db.analysisRun.findFirstOrThrow({ where: { flightId, isCurrent: true } });
+    expect(run.parameters).toEqual({ ...DEFAULT_ANALYSIS_PARAMETERS, binSizeM: 200 });
+    const history = await pages.getRunHistory({ kind: "local" }, flightId, database.db);
+    expect(history?.runs[0]?.change?.changedParameters).toEqual(["binSizeM"]);
+    expect(history?.runs[0]?.change?.calibrationChanged).toBe(false);
+    expect(history?.runs).toHaveLength(3);
+  });
+
+  test("a sensor moved to a payload of another school is refused; an unknown flight is not re-analysed", async () => {
+    const other = await setUpSchool(database.db, "Elsewhere School");
+    const moved = await actions.addSensorMount({ sensorId: ids.sensor.id, payloadId: other.payload.id, fromUtc: "2025-01-01T00:00:00Z", toUtc: null });
+    expect(moved.ok).toBe(false);
+    if (!moved.ok) expect(moved.message).toMatch(/does not belong/);
+    const missing = await actions.reprocessOneFlight({ flightId: "no-such-flight", reason: "x" });
+    expect(missing).toEqual({ ok: false, message: "That flight does not exist", fieldErrors: {} });
+  });
+
+  test("sites are validated by the shared schema; a good one is created and corrected", async () => {
+    const bad = await actions.saveSite({ schoolId: ids.school.id, name: "Ridge", latitudeDeg: 12, longitudeDeg: 200, elevationM: 300, timeZone: "Mars/Olympus" });
+    expect(bad.ok).toBe(false);
+    if (!bad.ok) expect(Object.keys(bad.fieldErrors).sort()).toEqual(["longitudeDeg", "timeZone"]);
+    const created = await actions.saveSite({ schoolId: ids.school.id, name: "Ridge", latitudeDeg: 12, longitudeDeg: 20, elevationM: 300, timeZone: "Africa/Cairo" });
+    expect(created.ok).toBe(true);
+    if (!created.ok) return;
+    const updated = await actions.saveSite({ id: created.data.id, schoolId: ids.school.id, name: "Ridge North", latitudeDeg: 12.5, longitudeDeg: 20, elevationM: 310, timeZone: "Africa/Cairo" });
+    expect(updated.ok).toBe(true);
+    expect(await database.db.site.findUniqueOrThrow({ where: { id: created.data.id } })).toMatchObject({ name: "Ridge North", latitudeDeg: 12.5, elevationM: 310 });
+  });
+});
