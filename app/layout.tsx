@@ -2,6 +2,7 @@ import type { Metadata } from "next";
 import type { ReactNode } from "react";
 import Link from "next/link";
 import "./globals.css";
+import { AccountLink } from "./_components/account-link";
 
 export const metadata: Metadata = {
   title: { default: "Lapsebank", template: "%s · Lapsebank" },
@@ -38,6 +39,7 @@ export default function RootLayout({ children }: { children: ReactNode }) {
                 ))}
               </ul>
             </nav>
+            <AccountLink />
           </div>
         </header>
         <main id="main" tabIndex={-1}>

@@ -1,10 +1,29 @@
 import "server-only";
-import { LOCAL_VIEWER, type Viewer } from "@/lib/auth/visibility";
+import { cache } from "react";
+import { cookies, headers } from "next/headers";
+import { SESSION_COOKIE } from "@/lib/auth/accounts";
+import { PermissionError } from "@/lib/auth/permissions";
+import { resolveViewer } from "@/lib/auth/resolve-viewer";
+import type { Viewer } from "@/lib/auth/visibility";
+import { getDb } from "@/lib/db";
 
 /**
- * Who is looking at the page or calling the API. Every page, action and route handler asks
- * here, so accounts and sharing change this one function only.
+ * Who is looking at the page or calling the API: the session cookie, an `Authorization: Bearer`
+ * API token, or an anonymous visitor (single-user "local" while no account exists). Every page,
+ * action and route handler asks here. An unknown or revoked token is refused with 401.
  */
-export async function getViewer(): Promise<Viewer> {
-  return LOCAL_VIEWER;
+export const getViewer = cache(async (): Promise<Viewer> => {
+  const [cookieStore, headerStore] = await Promise.all([cookies(), headers()]);
+  const resolution = await resolveViewer(getDb(), {
+    sessionSecret: cookieStore.get(SESSION_COOKIE)?.value,
+    authorization: headerStore.get("authorization"),
+  });
+  if (!resolution.viewer) throw new PermissionError(401, "The API token is unknown or has been revoked");
+  return resolution.viewer;
+});
+
+/** The client's address for rate limiting: the first X-Forwarded-For hop behind a proxy, else a fixed label. */
+export async function getClientAddress(): Promise<string> {
+  const headerStore = await headers();
+  return headerStore.get("x-forwarded-for")?.split(",")[0]?.trim() || headerStore.get("x-real-ip") || "direct";
 }

@@ -9,6 +9,8 @@ import {
   sensorInputSchema, siteInputSchema, suggestLayout, type IngestIssue, type LayoutSuggestion, type LoggerLayoutSpec,
 } from "@/lib/ingest";
 import { getViewer } from "@/app/_lib/viewer";
+import { can, type Action } from "@/lib/auth/permissions";
+import type { Viewer } from "@/lib/auth/visibility";
 import type { UploadChoices } from "@/lib/query/setup";
 
 export type ActionResult<T> =
@@ -22,6 +24,16 @@ function zodFailure(error: z.ZodError, message = "Some fields need attention"): 
     (fieldErrors[key] ??= []).push(issue.message);
   }
   return { ok: false, message, fieldErrors };
+}
+
+/** A refusal in the action-result shape when the viewer may not do this for that school. */
+function refusal(viewer: Viewer, action: Action, schoolId: string | null): ActionResult<never> | null {
+  if (can(viewer, action, { schoolId: schoolId || null })) return null;
+  return failure(viewer.kind === "anonymous" ? "Sign in to do this." : "You may not do this for that school.", { code: viewer.kind === "anonymous" ? "unauthenticated" : "forbidden" });
+}
+
+function actorOf(viewer: Viewer, label: string) {
+  return viewer.kind === "member" ? { userId: viewer.userId, label: viewer.email ?? viewer.userId } : { userId: null, label };
 }
 
 function failure(message: string, extra: Partial<Extract<ActionResult<never>, { ok: false }>> = {}): ActionResult<never> {
@@ -135,18 +147,20 @@ export interface UploadedFlight {
 
 /** Uploads one file with its metadata through the shared ingest pipeline. */
 export async function uploadFlightFile(formData: FormData): Promise<ActionResult<UploadedFlight>> {
-  await getViewer();
+  const viewer = await getViewer();
   const file = formData.get("file");
   if (!(file instanceof File)) return failure("Choose a file to upload", { fieldErrors: { file: ["Choose a file"] } });
   const metadata: Record<string, string> = {};
   for (const [key, value] of formData.entries()) {
     if (key !== "file" && typeof value === "string") metadata[key] = value;
   }
+  const refused = refusal(viewer, "flight.upload", metadata.schoolId ?? null);
+  if (refused) return refused;
   try {
     const result = await ingestFlightFile(getDb(), {
       file: { name: file.name || "upload.txt", bytes: new Uint8Array(await file.arrayBuffer()) },
       metadata,
-      actor: { userId: null, label: "web upload" },
+      actor: actorOf(viewer, "web upload"),
     });
     revalidatePath("/flights");
     revalidatePath("/");
@@ -178,6 +192,8 @@ function numberOrUndefined(value: FormDataEntryValue | null): string | undefined
 
 /** Creates a launch site for a school from the inline "new site" form. */
 export async function createSiteFromForm(formData: FormData): Promise<ActionResult<Site>> {
+  const refused = refusal(await getViewer(), "setup.edit", String(formData.get("schoolId") ?? ""));
+  if (refused) return refused;
   const parsed = siteInputSchema.safeParse({
     schoolId: formData.get("schoolId"), name: formData.get("name"),
     latitudeDeg: numberOrUndefined(formData.get("latitudeDeg")), longitudeDeg: numberOrUndefined(formData.get("longitudeDeg")),
@@ -191,6 +207,8 @@ export async function createSiteFromForm(formData: FormData): Promise<ActionResu
 
 /** Creates a payload from the inline "new payload" form. */
 export async function createPayloadFromForm(formData: FormData): Promise<ActionResult<Payload>> {
+  const refused = refusal(await getViewer(), "setup.edit", String(formData.get("schoolId") ?? ""));
+  if (refused) return refused;
   const parsed = payloadInputSchema.safeParse({ schoolId: formData.get("schoolId"), name: formData.get("name"), notes: formData.get("notes") ?? "" });
   if (!parsed.success) return zodFailure(parsed.error);
   const payload = await createPayload(getDb(), parsed.data);
@@ -200,6 +218,8 @@ export async function createPayloadFromForm(formData: FormData): Promise<ActionR
 
 /** Saves a logger layout built in the inline layout editor. */
 export async function saveLoggerLayout(input: { schoolId: string; spec: LoggerLayoutSpec }): Promise<ActionResult<Layout>> {
+  const refused = refusal(await getViewer(), "setup.edit", input.schoolId);
+  if (refused) return refused;
   const parsed = layoutInputSchema.safeParse(input);
   if (!parsed.success) return zodFailure(parsed.error, "The layout is not complete");
   const layout = await createLayout(getDb(), parsed.data);
@@ -227,6 +247,8 @@ export async function saveSensorCalibration(input: z.input<typeof sensorWithCali
   const parsed = sensorWithCalibrationSchema.safeParse(input);
   if (!parsed.success) return zodFailure(parsed.error);
   const { schoolId, sensorId, sensor, calibration } = parsed.data;
+  const refused = refusal(await getViewer(), "setup.edit", schoolId);
+  if (refused) return refused;
   if (!sensorId && !sensor) return failure("Describe the new sensor or choose an existing one", { fieldErrors: { "sensor.serial": ["Give the sensor's serial"] } });
   const db = getDb();
   try {

@@ -1,4 +1,5 @@
 import "server-only";
+import { PermissionError } from "@/lib/auth/permissions";
 import type { z } from "zod";
 import { IngestFailure, type IngestIssue } from "@/lib/ingest";
 
@@ -55,6 +56,7 @@ export function withErrors<A extends unknown[]>(handler: (...args: A) => Promise
       return await handler(...args);
     } catch (error) {
       if (error instanceof IngestFailure) return ingestFailureResponse(error);
+      if (error instanceof PermissionError) return jsonError(error.status, error.status === 401 ? "unauthenticated" : "forbidden", error.message);
       console.error("[api/v1]", error);
       return jsonError(500, "internal", "Something went wrong on the server; the error has been logged");
     }

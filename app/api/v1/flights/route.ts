@@ -4,6 +4,7 @@ import { ingestFlightFile } from "@/lib/ingest";
 import { getDb } from "@/lib/db";
 import { getEnv } from "@/lib/env";
 import { getViewer } from "@/app/_lib/viewer";
+import { requirePermission } from "@/lib/auth/permissions";
 import { absoluteUrl, jsonError, jsonOk, validationError, withErrors } from "../_lib/respond";
 
 export const runtime = "nodejs";
@@ -43,9 +44,12 @@ export const POST = withErrors(async (request: Request) => {
   for (const [key, value] of form.entries()) {
     if (key !== "file" && typeof value === "string") metadata[key] = value;
   }
+  const viewer = await getViewer();
+  requirePermission(viewer, "flight.upload", { schoolId: metadata.schoolId ?? null });
   const bytes = new Uint8Array(await file.arrayBuffer());
-  const result = await ingestFlightFile(getDb(), { file: { name: file.name || "upload.txt", bytes }, metadata, actor: { userId: null, label: "api" } });
-  const detail = await getFlight(await getViewer(), result.flightId);
+  const actor = viewer.kind === "member" ? { userId: viewer.userId, label: `api (${viewer.email ?? viewer.userId})` } : { userId: null, label: "api" };
+  const result = await ingestFlightFile(getDb(), { file: { name: file.name || "upload.txt", bytes }, metadata, actor });
+  const detail = await getFlight(viewer, result.flightId);
   const summary = detail?.currentRun?.summary ?? null;
   return jsonOk(
     {

@@ -1,0 +1,138 @@
+"use server";
+
+import { cookies } from "next/headers";
+import { redirect } from "next/navigation";
+import { revalidatePath } from "next/cache";
+import { z } from "zod";
+import { acceptInvitation, AccountError, changePassword, createApiToken, createInvitation, createUser, revokeApiToken, roleSchema, SESSION_COOKIE, setMembershipRole, signIn, signInSchema, signOut, signUpSchema, tokenScopeSchema } from "@/lib/auth/accounts";
+import { can } from "@/lib/auth/permissions";
+import { getDb } from "@/lib/db";
+import { getEnv } from "@/lib/env";
+import { getClientAddress, getViewer } from "@/app/_lib/viewer";
+
+export type FormState = { ok: boolean; message: string; fieldErrors?: Record<string, string[]>; secret?: string } | null;
+
+function fieldErrorsOf(error: z.ZodError): Record<string, string[]> {
+  const out: Record<string, string[]> = {};
+  for (const issue of error.issues) (out[issue.path.join(".") || "form"] ??= []).push(issue.message);
+  return out;
+}
+
+async function startSession(sessionSecret: string, expiresAt: Date) {
+  (await cookies()).set(SESSION_COOKIE, sessionSecret, {
+    httpOnly: true,
+    sameSite: "lax",
+    secure: getEnv().NODE_ENV === "production" && process.env.LAPSEBANK_INSECURE_COOKIES !== "1",
+    path: "/",
+    expires: expiresAt,
+  });
+}
+
+export async function signUpAction(_: FormState, formData: FormData): Promise<FormState> {
+  const parsed = signUpSchema.safeParse({ email: formData.get("email"), password: formData.get("password"), displayName: formData.get("displayName") });
+  if (!parsed.success) return { ok: false, message: "Some fields need attention", fieldErrors: fieldErrorsOf(parsed.error) };
+  const db = getDb();
+  try {
+    await createUser(db, parsed.data);
+    const session = await signIn(db, parsed.data, await getClientAddress());
+    await startSession(session.sessionSecret, session.expiresAt);
+  } catch (error) {
+    if (error instanceof AccountError) return { ok: false, message: error.message };
+    throw error;
+  }
+  const next = String(formData.get("next") ?? "");
+  redirect(next.startsWith("/") && !next.startsWith("//") ? next : "/account");
+}
+
+export async function signInAction(_: FormState, formData: FormData): Promise<FormState> {
+  const parsed = signInSchema.safeParse({ email: formData.get("email"), password: formData.get("password") });
+  if (!parsed.success) return { ok: false, message: "Some fields need attention", fieldErrors: fieldErrorsOf(parsed.error) };
+  try {
+    const session = await signIn(getDb(), parsed.data, await getClientAddress());
+    await startSession(session.sessionSecret, session.expiresAt);
+  } catch (error) {
+    if (error instanceof AccountError) return { ok: false, message: error.message };
+    throw error;
+  }
+  const next = String(formData.get("next") ?? "");
+  redirect(next.startsWith("/") && !next.startsWith("//") ? next : "/flights");
+}
+
+export async function signOutAction(): Promise<void> {
+  const store = await cookies();
+  const secret = store.get(SESSION_COOKIE)?.value;
+  if (secret) await signOut(getDb(), secret);
+  store.delete(SESSION_COOKIE);
+  redirect("/");
+}
+
+export async function changePasswordAction(_: FormState, formData: FormData): Promise<FormState> {
+  const viewer = await getViewer();
+  if (viewer.kind !== "member") return { ok: false, message: "Sign in first." };
+  try {
+    await changePassword(getDb(), viewer.userId, String(formData.get("currentPassword") ?? ""), String(formData.get("newPassword") ?? ""));
+    return { ok: true, message: "Password changed." };
+  } catch (error) {
+    if (error instanceof AccountError) return { ok: false, message: error.message };
+    throw error;
+  }
+}
+
+const tokenFormSchema = z.object({ schoolId: z.string().min(1, "Choose a school"), name: z.string().trim().min(1, "Name the token").max(80), scopes: z.array(tokenScopeSchema).min(1, "Choose at least one scope") });
+
+export async function createTokenAction(_: FormState, formData: FormData): Promise<FormState> {
+  const viewer = await getViewer();
+  if (viewer.kind !== "member") return { ok: false, message: "Sign in first." };
+  const parsed = tokenFormSchema.safeParse({ schoolId: formData.get("schoolId"), name: formData.get("name"), scopes: formData.getAll("scopes") });
+  if (!parsed.success) return { ok: false, message: "Some fields need attention", fieldErrors: fieldErrorsOf(parsed.error) };
+  try {
+    const { token } = await createApiToken(getDb(), { userId: viewer.userId, ...parsed.data });
+    revalidatePath("/account");
+    return { ok: true, message: "Copy this token now: it is shown only once.", secret: token };
+  } catch (error) {
+    if (error instanceof AccountError) return { ok: false, message: error.message };
+    throw error;
+  }
+}
+
+export async function revokeTokenAction(formData: FormData): Promise<void> {
+  const viewer = await getViewer();
+  if (viewer.kind !== "member") redirect("/account");
+  await revokeApiToken(getDb(), String(formData.get("tokenId") ?? ""), viewer.userId);
+  revalidatePath("/account");
+}
+
+export async function acceptInvitationAction(formData: FormData): Promise<void> {
+  const viewer = await getViewer();
+  const secret = String(formData.get("secret") ?? "");
+  if (viewer.kind !== "member") redirect(`/account?next=${encodeURIComponent(`/invite/${secret}`)}`);
+  try {
+    await acceptInvitation(getDb(), secret, viewer.userId);
+  } catch (error) {
+    if (error instanceof AccountError) redirect(`/invite/${encodeURIComponent(secret)}?error=${encodeURIComponent(error.message)}`);
+    throw error;
+  }
+  redirect("/account?joined=1");
+}
+
+const inviteSchema = z.object({ schoolId: z.string().min(1), role: roleSchema });
+
+export async function createInvitationAction(_: FormState, formData: FormData): Promise<FormState> {
+  const viewer = await getViewer();
+  const parsed = inviteSchema.safeParse({ schoolId: formData.get("schoolId"), role: formData.get("role") });
+  if (!parsed.success) return { ok: false, message: "Choose a role", fieldErrors: fieldErrorsOf(parsed.error) };
+  if (!can(viewer, "members.manage", { schoolId: parsed.data.schoolId })) return { ok: false, message: "Only the school's admins can invite people." };
+  const invitation = await createInvitation(getDb(), { ...parsed.data, createdById: viewer.kind === "member" ? viewer.userId : null });
+  return { ok: true, message: `Invitation link (valid until ${invitation.expiresAt.toISOString().slice(0, 10)}, usable once):`, secret: `/invite/${invitation.secret}` };
+}
+
+export async function setRoleAction(formData: FormData): Promise<void> {
+  const viewer = await getViewer();
+  const schoolId = String(formData.get("schoolId") ?? "");
+  const userId = String(formData.get("userId") ?? "");
+  const roleValue = String(formData.get("role") ?? "");
+  if (!can(viewer, "members.manage", { schoolId })) redirect(`/schools/${schoolId}/members?error=forbidden`);
+  const role = roleValue === "remove" ? null : roleSchema.parse(roleValue);
+  await setMembershipRole(getDb(), { userId, schoolId, role, byUserId: viewer.kind === "member" ? viewer.userId : null });
+  revalidatePath(`/schools/${schoolId}/members`);
+}
