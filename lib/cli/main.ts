@@ -83,8 +83,10 @@ async function runIngest(args: string[]): Promise<number> {
       school: { type: "string" }, site: { type: "string" }, layout: { type: "string" }, sensor: { type: "string" },
       payload: { type: "string" }, calibration: { type: "string" }, launch: { type: "string" },
       visibility: { type: "string", default: "program" }, lenient: { type: "boolean", default: false }, title: { type: "string" },
+      server: { type: "string" }, token: { type: "string" },
     },
   });
+  if (values.server) return runRemoteIngest(positionals, values);
   if (positionals.length === 0) {
     console.error("ingest: name at least one file");
     return 2;
@@ -125,6 +127,51 @@ async function runIngest(args: string[]): Promise<number> {
     }
   }
   console.log(`${positionals.length - failed} ingested, ${failed} failed`);
+  return failed ? 1 : 0;
+}
+
+/** `ingest --server URL --token T`: the same upload through a remote server's JSON API. */
+async function runRemoteIngest(files: string[], values: Record<string, string | boolean | undefined>): Promise<number> {
+  const server = String(values.server).replace(/\/+$/, "");
+  const token = values.token ?? process.env.LAPSEBANK_TOKEN;
+  if (!token) {
+    console.error("ingest --server needs --token (or LAPSEBANK_TOKEN): make one on the server's Account page");
+    return 2;
+  }
+  const fields: Record<string, string | undefined> = {
+    schoolId: values.school as string | undefined, siteId: values.site as string | undefined, layoutId: values.layout as string | undefined,
+    sensorId: values.sensor as string | undefined, payloadId: values.payload as string | undefined, calibrationId: values.calibration as string | undefined,
+    launchAtUtc: values.launch as string | undefined, visibility: values.visibility as string | undefined, mode: values.lenient ? "lenient" : "strict",
+    title: values.title as string | undefined,
+  };
+  let failed = 0;
+  for (const [index, file] of files.entries()) {
+    const label = `[${index + 1}/${files.length}] ${file}`;
+    const form = new FormData();
+    try {
+      form.set("file", new Blob([fs.readFileSync(file)]), path.basename(file));
+    } catch (error) {
+      console.error(`${label}: cannot read: ${(error as Error).message}`);
+      failed++;
+      continue;
+    }
+    for (const [key, value] of Object.entries(fields)) if (value) form.set(key, value);
+    try {
+      const response = await fetch(`${server}/api/v1/flights`, { method: "POST", body: form, headers: { Authorization: `Bearer ${token}` } });
+      const body = (await response.json().catch(() => ({}))) as { flight?: { id: string; url: string }; error?: { code: string; message: string; issues?: Array<{ file: string; line: number | null; column: number | null; message: string }> } };
+      if (response.status === 201 && body.flight) {
+        console.log(`${label}: flight ${body.flight.id} (${body.flight.url})`);
+      } else {
+        failed++;
+        console.error(`${label}: refused with HTTP ${response.status} (${body.error?.code ?? "?"}): ${body.error?.message ?? ""}`);
+        for (const issue of body.error?.issues ?? []) console.error(`  ${issue.file}${issue.line ? `, line ${issue.line}` : ""}${issue.column ? `, column ${issue.column}` : ""}: ${issue.message}`);
+      }
+    } catch (error) {
+      failed++;
+      console.error(`${label}: could not reach ${server}: ${(error as Error).message}`);
+    }
+  }
+  console.log(`${files.length - failed} ingested, ${failed} failed`);
   return failed ? 1 : 0;
 }
 
