@@ -6,6 +6,7 @@ const root = fileURLToPath(new URL(".", import.meta.url));
 export default defineConfig({
   resolve: { alias: { "@": root, "server-only": `${root}test/support/server-only-stub.ts` } },
   test: {
+    reporters: ["default", "./test/support/summary-reporter.ts"],
     projects: [
       {
         extends: true,
@@ -27,6 +28,7 @@ export default defineConfig({
         test: {
           name: "e2e",
           include: ["test/e2e/**/*.test.ts"],
+          globalSetup: ["test/support/e2e-global-setup.ts"],
           testTimeout: 120_000,
           hookTimeout: 300_000,
           fileParallelism: false,
