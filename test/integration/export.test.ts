@@ -112,7 +112,7 @@ describe.each(testEngines())("export on %s", (engine) => {
       expect(row.troposphericLapseRateKPerKm).not.toBe("");
     }
     const formulaRow = flightRows.find((r) => r.flightId === flights.formula);
-    expect(formulaRow?.title.startsWith("'=")).toBe(true);
+    expect(formulaRow?.title?.startsWith("'=")).toBe(true);
     expect(unguardTextCell(formulaRow?.title ?? "")).toBe("=HYPERLINK(\"http://x\",\"y\")");
     expect(flightRows.find((r) => r.flightId === flights.southSchool)?.title).toBe("'-South school only");
 
