@@ -7,6 +7,7 @@ import { getEnv } from "../env.ts";
 import { formatIssue, ingestFlightFile, IngestFailure, reprocessFlights, type ReprocessSelection } from "../ingest/index.ts";
 import { loadDemoProgram } from "../../seed/load.ts";
 import { resetDatabase } from "./reset.ts";
+import { EXPORT_HELP, runBackup, runExport, runRestore } from "./export-commands.ts";
 import { createUser } from "../auth/accounts.ts";
 import { z } from "zod";
 
@@ -25,6 +26,7 @@ Commands:
                                safe to interrupt and run again: up-to-date flights are skipped
   admin create --email E --name N
                                create a program admin (password from LAPSEBANK_ADMIN_PASSWORD or stdin)
+${EXPORT_HELP}
   help                         this text
 
 DATABASE_URL chooses the database: file:./data/lapsebank.db (default, SQLite) or postgres://...`;
@@ -41,6 +43,12 @@ async function main(argv: string[]): Promise<number> {
       return runDemo(rest, url);
     case "ingest":
       return runIngest(rest);
+    case "export":
+      return runExport(rest);
+    case "backup":
+      return runBackup(rest);
+    case "restore":
+      return runRestore(rest);
     case "reprocess":
       return runReprocess(rest);
     case "admin":
