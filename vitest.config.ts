@@ -28,7 +28,7 @@ export default defineConfig({
         test: {
           name: "e2e",
           include: ["test/e2e/**/*.test.ts"],
-          globalSetup: ["test/support/e2e-global-setup.ts"],
+          globalSetup: ["test/support/postgres-global-setup.ts", "test/support/e2e-global-setup.ts"],
           testTimeout: 120_000,
           hookTimeout: 300_000,
           fileParallelism: false,
