@@ -1,6 +1,7 @@
 import "server-only";
 import { isDeepStrictEqual } from "node:util";
 import { getDb, type Db } from "../db/index.ts";
+import { can } from "../auth/permissions.ts";
 import { flightVisibilityWhere, type Viewer } from "../auth/visibility.ts";
 import { getProgramParameters } from "../ingest/store.ts";
 import { DEFAULT_PARAMETERS } from "../ingest/schemas.ts";
@@ -203,11 +204,11 @@ export function compareRuns(before: RunForDifference, after: RunForDifference): 
 }
 
 /**
- * A flight's analysis runs, newest first, each with what changed against the run before it.
- * Null when the flight is not visible to the viewer.
+ * A flight's analysis runs, newest first, each with what changed against the run before it, and
+ * whether the viewer may re-analyse it. Null when the flight is not visible to the viewer.
  */
 export async function getRunHistory(viewer: Viewer, flightId: string, db: Db = getDb()) {
-  const flight = await db.flight.findFirst({ where: { AND: [{ id: flightId }, flightVisibilityWhere(viewer)] }, select: { id: true } });
+  const flight = await db.flight.findFirst({ where: { AND: [{ id: flightId }, flightVisibilityWhere(viewer)] }, select: { id: true, schoolId: true } });
   if (!flight) return null;
   const runs = await db.analysisRun.findMany({
     where: { flightId },
@@ -231,7 +232,7 @@ export async function getRunHistory(viewer: Viewer, flightId: string, db: Db = g
       change: previous && row ? compareRuns(previous, row) : null,
     };
   });
-  return { flightId, runs: history.reverse() };
+  return { flightId, mayReanalyse: can(viewer, "setup.edit", { schoolId: flight.schoolId }), runs: history.reverse() };
 }
 
 export type RunHistory = NonNullable<Awaited<ReturnType<typeof getRunHistory>>>;

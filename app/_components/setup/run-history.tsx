@@ -10,7 +10,7 @@ const two = (n: number | null) => (n === null ? "—" : n.toFixed(2));
  * (tropopause moved by N m, lapse rate by N K/km, calibration/layout/parameters/version changed),
  * and the "Re-analyse this flight" button. Old runs are kept; one is current.
  */
-export function RunHistoryPanel({ history, canReanalyse = true }: { history: RunHistory; canReanalyse?: boolean }) {
+export function RunHistoryPanel({ history }: { history: RunHistory }) {
   return (
     <div>
       <h2>Run history</h2>
@@ -45,7 +45,7 @@ export function RunHistoryPanel({ history, canReanalyse = true }: { history: Run
           </tbody>
         </table>
       </div>
-      {canReanalyse && <ReanalyseButton flightId={history.flightId} />}
+      {history.mayReanalyse && <ReanalyseButton flightId={history.flightId} />}
     </div>
   );
 }

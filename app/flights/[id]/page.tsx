@@ -3,9 +3,12 @@ import Link from "next/link";
 import { notFound } from "next/navigation";
 import { cache } from "react";
 import { getFlight, getFlightLevels } from "@/lib/query/flights";
+import { getRunHistory } from "@/lib/query/setup-pages";
+import { RunHistoryPanel } from "@/app/_components/setup/run-history";
 import { Cautions } from "@/app/_components/cautions";
 import { ProfileChart } from "@/app/_components/profile-chart";
 import { getViewer } from "@/app/_lib/viewer";
+import { FlightAdminPanel } from "./_components/flight-admin-panel";
 import { buildProfileChartData } from "@/app/_lib/profile-series";
 import {
   describeCalibration, describeLayerKind, describeStability, describeTropopauseStatus, formatBytes, formatCelsius, formatKelvin,
@@ -34,7 +37,7 @@ const REMOVED_WORDS: Record<string, string> = {
 export default async function FlightPage({ params }: { params: Params }) {
   const { id } = await params;
   const viewer = await getViewer();
-  const [flight, levels] = await Promise.all([loadFlight(id), getFlightLevels(viewer, id)]);
+  const [flight, levels, history] = await Promise.all([loadFlight(id), getFlightLevels(viewer, id), getRunHistory(viewer, id)]);
   if (!flight) notFound();
   const run = flight.currentRun;
   const summary = run?.summary ?? null;
@@ -68,6 +71,7 @@ export default async function FlightPage({ params }: { params: Params }) {
         <div><dt>Visibility</dt><dd>{flight.visibility}{flight.synthetic ? " · demo data" : ""}</dd></div>
       </dl>
       {flight.notes && <p className="muted">{flight.notes}</p>}
+      <FlightAdminPanel viewer={viewer} flight={flight} />
 
       <Cautions />
 
@@ -183,37 +187,7 @@ export default async function FlightPage({ params }: { params: Params }) {
         </>
       )}
 
-      {flight.runs.length > 0 && (
-        <>
-          <h2>Run history</h2>
-          <div className="table-wrap" role="region" aria-label="Run history" tabIndex={0}>
-            <table>
-              <thead>
-                <tr>
-                  <th scope="col">Created (UTC)</th>
-                  <th scope="col">Version</th>
-                  <th scope="col">Reason</th>
-                  <th scope="col" className="num">Tropopause (km)</th>
-                  <th scope="col" className="num">Lapse rate (K/km)</th>
-                  <th scope="col">Levels</th>
-                </tr>
-              </thead>
-              <tbody>
-                {flight.runs.map((r) => (
-                  <tr key={r.id}>
-                    <td className="nowrap">{formatUtc(r.createdAt)} {r.isCurrent && <span className="flag flag-current">current</span>}</td>
-                    <td>{r.analysisVersion}</td>
-                    <td>{r.reason}</td>
-                    <td className="num">{formatNumber(r.tropopauseAltitudeM === null ? null : r.tropopauseAltitudeM / 1000, 2)}</td>
-                    <td className="num">{formatNumber(r.troposphericLapseRateKPerKm, 2)}</td>
-                    <td><a href={`/api/v1/flights/${flight.id}/levels?run=${r.id}`}>JSON</a></td>
-                  </tr>
-                ))}
-              </tbody>
-            </table>
-          </div>
-        </>
-      )}
+      {history && history.runs.length > 0 && <RunHistoryPanel history={history} />}
 
       <h2>Raw file</h2>
       <p>
