@@ -18,29 +18,34 @@ const PAYLOAD = "Pod One";
 const SENSOR_SERIAL = "LV10-22-5530";
 const LAUNCH_LOCAL_INPUT = "2022-11-15T07:30:00"; // read as UTC by the form
 
-// A fresh invented file each run, so a long-lived server (LAPSEBANK_E2E_BASE_URL) never sees a
-// duplicate; the seed is printed to reproduce a failure.
-const seed = Date.now() % 2_000_000_000;
-const flight = makeFlightFile({ seed });
+// An invented flight (makeFlightFile, layout A). A comment line of fixed width with the run's
+// time makes the bytes new on every run, so a long-lived server (LAPSEBANK_E2E_BASE_URL) never
+// sees a duplicate, while the data and every byte offset stay the same. With this seed the
+// preview's 64 KB window ends in the middle of a data row (checked below).
+const UPLOAD_SEED = 30302;
+const PREVIEW_WINDOW_BYTES = 64 * 1024;
+const flight = makeFlightFile({ seed: UPLOAD_SEED });
+const goodText = `# e2e upload ${String(Date.now()).padStart(16, "0")}\n${flight.text}`;
+const goodBytes = new TextEncoder().encode(goodText);
 const tempDir = fs.mkdtempSync(path.join(os.tmpdir(), "lapsebank-e2e-upload-"));
-const goodFile = path.join(tempDir, `e2e-flight-${seed}.csv`);
-fs.writeFileSync(goodFile, flight.bytes);
+const goodFile = path.join(tempDir, "e2e-flight.csv");
+fs.writeFileSync(goodFile, goodBytes);
 
 // The same flight with text in the temperature field of one data row.
-const lines = flight.text.split("\n");
-const BAD_LINE = 40; // 1-based: line 1 is the header
-const badFields = (lines[BAD_LINE - 1] ?? "").split(",");
-const headerFields = (lines[0] ?? "").split(",");
+const lines = goodText.split("\n");
+const HEADER_LINE = 2; // 1-based: line 1 is the comment
+const BAD_LINE = 40;
+const headerFields = (lines[HEADER_LINE - 1] ?? "").split(",");
 const BAD_COLUMN = headerFields.indexOf("temp_counts") + 1; // [D] 1-based position of the temperature column
+const badFields = (lines[BAD_LINE - 1] ?? "").split(",");
 badFields[BAD_COLUMN - 1] = "warm";
 lines[BAD_LINE - 1] = badFields.join(",");
-const badFile = path.join(tempDir, `e2e-malformed-${seed}.csv`);
+const badFile = path.join(tempDir, "e2e-malformed.csv");
 fs.writeFileSync(badFile, lines.join("\n"));
 
 let session: E2eSession;
 
 beforeAll(async () => {
-  console.log(`upload e2e: flight file seed ${seed}`);
   session = await openSession();
 });
 
@@ -87,9 +92,11 @@ describe("upload through the web form", () => {
     const previewRows = dataRows(page, "Parsed rows");
     await expect.poll(() => previewRows.count(), { timeout: 15_000 }).toBeGreaterThan(0);
     const firstPreviewLine = await previewRows.first().getByRole("cell").first().innerText();
-    expect(firstPreviewLine.trim()).toBe("2"); // [D] line 1 of the file is the header
-    // Every row of this file is well formed, so the preview must not report unreadable rows (a
-    // preview that reads only the start of a file must not count its cut last line as bad).
+    expect(firstPreviewLine.trim()).toBe(String(HEADER_LINE + 1)); // [D] the first data row follows the header
+    // Every row of this file is well formed, so the preview must not report unreadable rows: a
+    // preview of the first 64 KB must not take the row cut at the window's end for a bad row.
+    expect(goodBytes.length).toBeGreaterThan(PREVIEW_WINDOW_BYTES);
+    expect(goodBytes[PREVIEW_WINDOW_BYTES - 1], "the window ends inside a row").not.toBe(0x0a);
     expect(await page.getByText(/could not be read/).count()).toBe(0);
     await saveScreenshot(page, "upload-preview");
 
@@ -122,7 +129,7 @@ describe("upload through the web form", () => {
 
     // The raw bytes come back unchanged.
     const raw = await session.context.request.get(`/api/v1/flights/${id}/raw`);
-    expect(Buffer.from(await raw.body()).equals(Buffer.from(flight.bytes))).toBe(true);
+    expect(Buffer.from(await raw.body()).equals(Buffer.from(goodBytes))).toBe(true);
 
     expect(await archiveTotal()).toBe(before + 1);
     expect(pageErrors).toEqual([]);
