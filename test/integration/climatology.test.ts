@@ -179,6 +179,28 @@ describe.each(testEngines())("climatology on %s (demo subset)", (engine) => {
     }
   });
 
+  test("levels missing inside the band: a gap of more than two bins excludes the flight, a one-bin gap does not", async () => {
+    const rows = (await summaries()).filter((r) => !r.qcFlagged);
+    const band = query({ metric: "band-lapse-rate", bandBaseKm: "1", bandTopKm: "6", groupBy: "none" });
+    const before = await getClimatology(LOCAL, band, database);
+    const covered = before.groups.flatMap((g) => g.flights);
+    const [wide, narrow] = covered;
+    if (!wide || !narrow) throw new Error("need two covered flights");
+    const runOf = (flightId: string) => rows.find((r) => r.flightId === flightId)?.runId ?? "";
+    // Remove four consecutive bins (3.0–3.4 km) from one flight and one bin (4.0–4.1 km) from another.
+    await database.db.profileLevel.deleteMany({ where: { runId: runOf(wide.flightId), phase: "ascent", baseM: { gte: 3000, lt: 3400 } } });
+    await database.db.profileLevel.deleteMany({ where: { runId: runOf(narrow.flightId), phase: "ascent", baseM: { gte: 4000, lt: 4100 } } });
+    const after = await getClimatology(LOCAL, band, database);
+    const afterFlights = after.groups.flatMap((g) => g.flights);
+    expect(afterFlights.map((f) => f.flightId)).not.toContain(wide.flightId);
+    expect(after.excluded.find((e) => e.reason.endsWith("a data gap of more than two bins inside the band"))?.count).toBe(1);
+    const stillIn = afterFlights.find((f) => f.flightId === narrow.flightId);
+    const levels = await database.db.profileLevel.findMany({ where: { runId: runOf(narrow.flightId), phase: "ascent" } });
+    const reference = computeBandLapseRate(levels as ProfileLevel[], 1000, 6000);
+    expect(stillIn?.value).toBeCloseTo(reference.layer?.lapseRateKPerKm ?? Number.NaN, 9);
+    expect(computeBandLapseRate((await database.db.profileLevel.findMany({ where: { runId: runOf(wide.flightId), phase: "ascent" } })) as ProfileLevel[], 1000, 6000).layer).toBeNull();
+  });
+
   test("the band check finds at least one flight of each kind in the 1–6 km case (the fixture exercises exclusion)", async () => {
     const result = await getClimatology(LOCAL, query({ metric: "band-lapse-rate", bandBaseKm: "1", bandTopKm: "6", groupBy: "site" }), database);
     // [D] the demo program's high-plains sites lie near 1.6 km, above a 1 km band base
