@@ -10,7 +10,8 @@ export default defineConfig({
     projects: [
       {
         extends: true,
-        test: { name: "unit", include: ["test/analysis/**/*.test.ts", "test/stats/**/*.test.ts", "test/unit/**/*.test.ts"] },
+        // Generous timeout: property tests and generators run on a busy 2-core machine in CI.
+        test: { name: "unit", include: ["test/analysis/**/*.test.ts", "test/stats/**/*.test.ts", "test/unit/**/*.test.ts"], testTimeout: 60_000 },
       },
       {
         extends: true,

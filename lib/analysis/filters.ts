@@ -65,8 +65,10 @@ const MAD_TO_SIGMA = 1.4826;
 
 /**
  * Hampel filter (Hampel 1974; Pearson 2002): sample i is a spike when
- * |x_i − median| > max(k·1.4826·MAD, minThreshold) over the window i ± h. The floor stops
- * quantised or very smooth records (MAD = 0) from flagging ordinary steps [P].
+ * |x_i − median| > max(k·1.4826·MAD, minThreshold, 3·step) over the window i ± h, where step is
+ * the smallest non-zero change between neighbouring samples in the window: the reading's
+ * resolution. The floors stop quantised records (an ADC count is ~0.5 K on a 10-bit, 10 mV/K
+ * logger; MAD is then often 0) from flagging ordinary one- or two-count steps [P].
  * Returns a mask, 1 = spike.
  */
 export function hampelSpikeMask(
@@ -91,7 +93,13 @@ export function hampelSpikeMask(
     const med = medians[i] as number;
     for (let j = lo; j <= hi; j++) scratch[j - lo] = Math.abs((values[j] as number) - med);
     const mad = medianInPlace(scratch, count);
-    if (deviation > Math.max(thresholdSigmas * MAD_TO_SIGMA * mad, minThreshold)) mask[i] = 1;
+    let step = Number.POSITIVE_INFINITY;
+    for (let j = lo + 1; j <= hi; j++) {
+      const change = Math.abs((values[j] as number) - (values[j - 1] as number));
+      if (change > 1e-9 && change < step) step = change;
+    }
+    const resolutionFloor = Number.isFinite(step) ? 3 * step : 0;
+    if (deviation > Math.max(thresholdSigmas * MAD_TO_SIGMA * mad, minThreshold, resolutionFloor)) mask[i] = 1;
   }
   return mask;
 }
