@@ -9,7 +9,7 @@ import { createHash } from "node:crypto";
 import packageJson from "../../package.json" with { type: "json" };
 import type { DbHandle, Db } from "../db/index.ts";
 import type { Viewer } from "../auth/visibility.ts";
-import { csvLine, type CellValue } from "./csv.ts";
+import { csvCell, csvLine, formatNumberCell } from "./csv.ts";
 import { ZipQueue } from "./zip-queue.ts";
 import { openLevelReader } from "./level-reader.ts";
 import { citationCff, dataPackageDescriptor, readmeText, tableSchema, type PackageFacts, type ResourceFacts } from "./package-metadata.ts";
@@ -20,6 +20,7 @@ import {
   readLayers,
   readLevels,
   readRawBytes,
+  readRunRefPages,
   resolveExportScope,
   type ExportScope,
 } from "./read.ts";
@@ -86,15 +87,6 @@ function collect(c: Collected, page: readonly FlightExportRow[]): void {
   }
 }
 
-/** A field's value as a CSV cell. */
-function cellOf<R>(field: ExportField<R>, row: R): CellValue {
-  const value = field.get(row);
-  if (value === null || value === undefined) return null;
-  if (field.type === "object" || field.type === "array") return { json: value };
-  if (value instanceof Date || typeof value === "string" || typeof value === "number" || typeof value === "boolean") return value;
-  return String(value);
-}
-
 /** A field's value in a JSON record (times as ISO 8601 UTC text). */
 function jsonValueOf<R>(field: ExportField<R>, row: R): unknown {
   const value = field.get(row);
@@ -119,6 +111,7 @@ function rawFileRow(f: FlightExportRow): RawFileExportRow {
 function tablePages(handle: DbLike, viewer: Viewer, scope: ExportScope, name: TableName, pageSize: number, collected: Collected | null): { table: ExportTable<never>; pages: () => AsyncGenerator<unknown[]> } {
   const db = handle.db;
   const flights = () => readFlightPages(db, viewer, scope.flightIds, pageSize);
+  const runRefs = () => readRunRefPages(db, viewer, scope.flightIds, pageSize);
   const as = <R>(table: ExportTable<R>, pages: () => AsyncGenerator<R[]>) => ({ table: table as unknown as ExportTable<never>, pages: pages as () => AsyncGenerator<unknown[]> });
   switch (name) {
     case "flights":
@@ -134,13 +127,13 @@ function tablePages(handle: DbLike, viewer: Viewer, scope: ExportScope, name: Ta
       });
     case "layers":
       return as(LAYERS_TABLE, async function* () {
-        for await (const page of flights()) yield await readLayers(db, page);
+        for await (const page of runRefs()) yield await readLayers(db, page);
       });
     case "levels":
       return as(LEVELS_TABLE, async function* () {
         const reader = openLevelReader(handle);
         try {
-          for await (const page of flights()) yield await readLevels(reader, page);
+          for await (const page of runRefs()) yield await readLevels(reader, page);
         } finally {
           await reader.close();
         }
@@ -171,13 +164,43 @@ function tablePages(handle: DbLike, viewer: Viewer, scope: ExportScope, name: Ta
   }
 }
 
+/** A cell writer per field type, chosen once per table (the hot loop of a large export). */
+function cellWriter(type: ExportField<unknown>["type"]): (value: unknown) => string {
+  switch (type) {
+    case "number":
+    case "integer":
+      return (v) => (typeof v === "number" ? formatNumberCell(v) : v === null || v === undefined ? "" : csvCell(String(v)));
+    case "object":
+    case "array":
+      return (v) => (v === null || v === undefined ? "" : csvCell({ json: v }));
+    default:
+      return (v) => (v === null || v === undefined ? "" : csvCell(v instanceof Date || typeof v === "boolean" || typeof v === "string" || typeof v === "number" ? v : String(v)));
+  }
+}
+
+/** One CSV record per row for a table's fields (same cells as csvLine, without per-cell type dispatch). */
+function rowFormatter(fields: ReadonlyArray<ExportField<unknown>>): (row: unknown) => string {
+  const getters = fields.map((f) => f.get);
+  const writers = fields.map((f) => cellWriter(f.type));
+  const n = fields.length;
+  return (row) => {
+    let line = "";
+    for (let i = 0; i < n; i++) {
+      if (i) line += ",";
+      line += (writers[i] as (v: unknown) => string)((getters[i] as (r: unknown) => unknown)(row));
+    }
+    return `${line}\r\n`;
+  };
+}
+
 /** CSV text of a table, header first, then one chunk per page of rows. */
 async function* csvChunks(table: ExportTable<never>, pages: AsyncIterable<unknown[]>, counter: { rows: number }): AsyncGenerator<Uint8Array> {
   const fields = table.fields as ReadonlyArray<ExportField<unknown>>;
+  const format = rowFormatter(fields);
   yield encoder.encode(csvLine(fields.map((f) => f.name)));
   for await (const page of pages) {
     let text = "";
-    for (const row of page) text += csvLine(fields.map((f) => cellOf(f, row)));
+    for (const row of page) text += format(row);
     counter.rows += page.length;
     if (text) yield encoder.encode(text);
   }

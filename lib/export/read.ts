@@ -193,8 +193,30 @@ export async function* readFlightPages(db: Db, viewer: Viewer, flightIds: readon
   }
 }
 
+/** A flight's current run id, all the layer and level passes need (cheaper than reading whole flight rows). */
+export interface FlightRunRef {
+  id: string;
+  run: { id: string } | null;
+}
+
+/** The current run ids of an id list's flights, a page at a time; hidden or deleted flights are skipped. */
+export async function* readRunRefPages(db: Db, viewer: Viewer, flightIds: readonly string[], pageSize = FLIGHT_PAGE): AsyncGenerator<FlightRunRef[]> {
+  for (let start = 0; start < flightIds.length; start += pageSize) {
+    const ids = flightIds.slice(start, start + pageSize);
+    const runs = await db.analysisRun.findMany({
+      where: { isCurrent: true, flightId: { in: ids }, flight: flightVisibilityWhere(viewer) },
+      select: { id: true, flightId: true },
+    });
+    const runOf = new Map(runs.map((r) => [r.flightId, r.id]));
+    yield ids.flatMap((id) => {
+      const runId = runOf.get(id);
+      return runId ? [{ id, run: { id: runId } }] : [];
+    });
+  }
+}
+
 /** Layer statistics of the current runs of a page of flights. */
-export async function readLayers(db: Db, page: readonly FlightExportRow[]): Promise<LayerExportRow[]> {
+export async function readLayers(db: Db, page: readonly FlightRunRef[]): Promise<LayerExportRow[]> {
   const flightOfRun = new Map(page.flatMap((f) => (f.run ? [[f.run.id, f.id] as const] : [])));
   if (flightOfRun.size === 0) return [];
   const layers = await db.layerStat.findMany({ where: { runId: { in: [...flightOfRun.keys()] } }, orderBy: [{ runId: "asc" }, { phase: "asc" }, { baseM: "asc" }, { id: "asc" }] });
@@ -202,7 +224,7 @@ export async function readLayers(db: Db, page: readonly FlightExportRow[]): Prom
 }
 
 /** Binned levels of the current runs of a page of flights, by run, phase and altitude. */
-export async function readLevels(reader: LevelReader, page: readonly FlightExportRow[]): Promise<LevelExportRow[]> {
+export async function readLevels(reader: LevelReader, page: readonly FlightRunRef[]): Promise<LevelExportRow[]> {
   const flightOfRun = new Map(page.flatMap((f) => (f.run ? [[f.run.id, f.id] as const] : [])));
   if (flightOfRun.size === 0) return [];
   const tuples = await reader.read([...flightOfRun.keys()]);
