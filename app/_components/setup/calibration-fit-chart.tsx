@@ -23,8 +23,8 @@ export function CalibrationFitChart({ points, curve, readingUnit }: {
         <ResponsiveContainer width="100%" height={320}>
           <ScatterChart margin={{ top: 12, right: 24, bottom: 36, left: 16 }}>
             <CartesianGrid stroke="#d9dee3" />
-            <XAxis type="number" dataKey="raw" name="Reading" unit={` ${readingUnit}`} domain={["auto", "auto"]} label={{ value: `Reading (${readingUnit})`, position: "insideBottom", offset: -24 }} />
-            <YAxis type="number" dataKey="temperatureC" name="Temperature" unit=" °C" domain={["auto", "auto"]} width={72} label={{ value: "Temperature (°C)", angle: -90, position: "insideLeft", offset: 4 }} />
+            <XAxis type="number" dataKey="raw" name={`Reading (${readingUnit})`} domain={["auto", "auto"]} label={{ value: `Reading (${readingUnit})`, position: "insideBottom", offset: -24 }} />
+            <YAxis type="number" dataKey="temperatureC" name="Temperature (°C)" domain={["auto", "auto"]} width={56} label={{ value: "Temperature (°C)", angle: -90, position: "insideLeft", offset: 4 }} />
             <Scatter
               name="Fitted calibration"
               data={curve}
