@@ -256,13 +256,15 @@ function candidateSql(viewer: Viewer, query: ClimatologyQuery, engine: SqlEngine
   const midM = (band.baseM + band.topM) / 2;
   // x is the altitude in km from the band middle, which keeps the sums well conditioned.
   const x = sql`((l."altitudeM" - ${midM}) / 1000.0)`;
-  return sql`WITH c AS (${candidates}),
+  // The candidates are materialised and drive the join (CROSS JOIN fixes the order on SQLite), so each
+  // run's in-band levels are read by a range search on the (runId, phase, altitudeM) index.
+  return sql`WITH c AS MATERIALIZED (${candidates}),
     sums AS (
       SELECT l."runId" AS "runId", COUNT(*) AS n, SUM(${x}) AS sx, SUM(l."temperatureK") AS sy, SUM(${x} * ${x}) AS sxx,
         SUM(${x} * l."temperatureK") AS sxy, MIN(l."altitudeM") AS lo, MAX(l."altitudeM") AS hi, MAX(l."topM" - l."baseM") AS bin,
         MIN(l."baseM") AS "lowBase", MAX(l."baseM") AS "highBase"
-      FROM "ProfileLevel" l JOIN c ON c."runId" = l."runId"
-      WHERE l."phase" = ${query.phase} AND l."altitudeM" >= ${band.baseM} AND l."altitudeM" <= ${band.topM}
+      FROM c CROSS JOIN "ProfileLevel" l
+      WHERE l."runId" = c."runId" AND l."phase" = ${query.phase} AND l."altitudeM" >= ${band.baseM} AND l."altitudeM" <= ${band.topM}
       GROUP BY l."runId"
     )
     SELECT c.*, sums.n AS "bandN", sums.sx AS "bandSx", sums.sy AS "bandSy", sums.sxx AS "bandSxx", sums.sxy AS "bandSxy",
