@@ -168,6 +168,14 @@ export class CalibrationFitError extends Error {
   }
 }
 
+/** Ten significant digits: far below any sensor's resolution, and the stored coefficients stay readable. */
+function roundCoefficients<T>(value: T): T {
+  if (typeof value === "number") return (Number.isFinite(value) ? Number(value.toPrecision(10)) : value) as T;
+  if (Array.isArray(value)) return value.map((v: unknown) => roundCoefficients(v)) as T;
+  if (typeof value === "object" && value !== null) return Object.fromEntries(Object.entries(value).map(([k, v]) => [k, roundCoefficients(v)])) as T;
+  return value;
+}
+
 function withoutCorrection(cal: TemperatureCalibration): TemperatureCalibration {
   const { correction: _dropped, ...rest } = cal;
   return rest;
@@ -219,10 +227,11 @@ export function fitCalibrationPoints(input: z.input<typeof calibrationFitInputSc
     if (error instanceof CalibrationError) throw new CalibrationFitError(`The pairs do not determine the fit: ${error.message}`);
     throw error;
   }
-  const checked = temperatureCalibrationSchema.safeParse(calibration);
+  const checked = temperatureCalibrationSchema.safeParse(roundCoefficients(calibration));
   if (!checked.success) throw new CalibrationFitError(`The fit gave an unusable calibration (${checked.error.issues.map((i) => i.message).join("; ")}); check the pairs`);
+  const fittedCalibration = checked.data;
   const rows = points.map((p) => {
-    const r = calibrateReading(calibration, p.raw);
+    const r = calibrateReading(fittedCalibration, p.raw);
     const fittedC = r.ok ? r.temperatureK - KELVIN_AT_0_C : null;
     return { raw: p.raw, referenceC: p.referenceC, fittedC, residualK: fittedC === null ? null : fittedC - p.referenceC };
   });
@@ -236,14 +245,14 @@ export function fitCalibrationPoints(input: z.input<typeof calibrationFitInputSc
   const curve: CalibrationFitResult["curve"] = [];
   for (let i = 0; i <= steps; i++) {
     const raw = lo - pad + ((hi - lo + 2 * pad) * i) / steps;
-    const r = calibrateReading(calibration, raw);
+    const r = calibrateReading(fittedCalibration, raw);
     if (r.ok) curve.push({ raw, temperatureC: r.temperatureK - KELVIN_AT_0_C });
   }
   return {
-    calibration: checked.data,
+    calibration: fittedCalibration,
     method: points.length === 2 ? "two-point" : "least-squares",
     fitted,
-    coefficients: coefficientsOf(checked.data, fitted),
+    coefficients: coefficientsOf(fittedCalibration, fitted),
     points: rows,
     rmsResidualK,
     curve,

@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, test, vi } from "vitest";
 import { DEFAULT_ANALYSIS_PARAMETERS } from "../../lib/analysis/types.ts";
+import type { Viewer } from "../../lib/auth/visibility.ts";
 import { ingestFlightFile } from "../../lib/ingest/index.ts";
 import { LINEAR_10BIT_CALIBRATION } from "../../seed/demo-files.ts";
 import { makeFlightFile, setUpSchool } from "../support/flight-files.ts";
@@ -7,6 +8,9 @@ import { createTestDatabase, type TestDatabase } from "../support/test-databases
 
 // Server actions revalidate Next's cache; outside a request there is nothing to revalidate.
 vi.mock("next/cache", () => ({ revalidatePath: vi.fn() }));
+// Outside a request there are no cookies: the test chooses who is asking.
+const asking = vi.hoisted(() => ({ viewer: { kind: "local" } as Viewer }));
+vi.mock("@/app/_lib/viewer", () => ({ getViewer: async () => asking.viewer }));
 
 const K0 = 273.15; // 0 °C in K, SI definition
 
@@ -133,5 +137,25 @@ describe("Setup server actions (SQLite)", () => {
     const updated = await actions.saveSite({ id: created.data.id, schoolId: ids.school.id, name: "Ridge North", latitudeDeg: 12.5, longitudeDeg: 20, elevationM: 310, timeZone: "Africa/Cairo" });
     expect(updated.ok).toBe(true);
     expect(await database.db.site.findUniqueOrThrow({ where: { id: created.data.id } })).toMatchObject({ name: "Ridge North", latitudeDeg: 12.5, elevationM: 310 });
+  });
+
+  test("who may change what: a reader of another school and an anonymous visitor are refused", async () => {
+    const stranger: Viewer = { kind: "member", userId: "u-1", isProgramAdmin: false, schoolIds: ["elsewhere"], memberships: [{ schoolId: "elsewhere", role: "school-admin" }] };
+    const reader: Viewer = { kind: "member", userId: "u-2", isProgramAdmin: false, schoolIds: [ids.school.id], memberships: [{ schoolId: ids.school.id, role: "reader" }] };
+    const contributor: Viewer = { kind: "member", userId: "u-3", isProgramAdmin: false, schoolIds: [ids.school.id], memberships: [{ schoolId: ids.school.id, role: "contributor" }] };
+    try {
+      for (const viewer of [stranger, reader, { kind: "anonymous" } as Viewer]) {
+        asking.viewer = viewer;
+        expect(await actions.reprocessOneFlight({ flightId, reason: "not allowed", force: true })).toMatchObject({ ok: false });
+        expect(await actions.saveSite({ schoolId: ids.school.id, name: "Nope", latitudeDeg: 1, longitudeDeg: 1, elevationM: 1, timeZone: "UTC" })).toMatchObject({ ok: false, message: "You may not change this school's setup" });
+      }
+      // [P] program-wide parameters are for program administrators only, not school staff
+      asking.viewer = contributor;
+      expect(await actions.saveProgramParameters(DEFAULT_ANALYSIS_PARAMETERS)).toMatchObject({ ok: false });
+      expect(await actions.saveSite({ schoolId: ids.school.id, name: "Allowed Field", latitudeDeg: 1, longitudeDeg: 1, elevationM: 1, timeZone: "UTC" })).toMatchObject({ ok: true });
+    } finally {
+      asking.viewer = { kind: "local" };
+    }
+    expect(await database.db.site.count({ where: { name: "Nope" } })).toBe(0);
   });
 });
