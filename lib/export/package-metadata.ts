@@ -84,7 +84,7 @@ export function dataPackageDescriptor(facts: PackageFacts): Record<string, unkno
     version: facts.lapsebankVersion,
     keywords: ["temperature sounding", "lapse rate", "tropopause", "temperature inversion", "high-altitude balloon"],
     licenses: [{ name: facts.licence.id, path: facts.licence.path, title: facts.licence.title }],
-    contributors: facts.schools.map((s) => ({ title: s.name, role: "author" })),
+    ...(facts.schools.length ? { contributors: facts.schools.map((s) => ({ title: s.name, role: "author" })) } : {}),
     sources: [{ title: `Lapsebank archive of ${facts.programName}` }],
     resources: facts.resources.map((r) => ({
       name: r.table.name,

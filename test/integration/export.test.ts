@@ -203,6 +203,21 @@ describe.each(testEngines())("export on %s", (engine) => {
     expect(frictionlessValidator()(descriptor)).toBe(true);
   });
 
+  test("a claim check exports through the same code, with its verdict in the package metadata", async () => {
+    const query = { metric: "tropospheric-lapse-rate", groupBy: "none", qc: "include", claim: "one-sample", claimValue: "6.5" };
+    const files = unzipSync(await collect((await run(LOCAL_VIEWER, { source: "climatology", format: "package", ...query })).body));
+    const descriptor = JSON.parse(text(files["datapackage.json"])) as { lapsebank: { query: { claim: { verdict: string } | null; parameters: Record<string, string> } } };
+    expect(descriptor.lapsebank.query.parameters).toMatchObject({ claim: "one-sample", claimValue: "6.5" });
+    expect(descriptor.lapsebank.query.claim?.verdict).toMatch(/\w/);
+    expect(csvRecords(files["data/query-values.csv"]).length).toBe(3);
+  });
+
+  test("an export that matches no flight is still a valid, empty package", async () => {
+    const files = unzipSync(await collect((await run(LOCAL_VIEWER, { source: "archive", format: "package", from: "1990-01-01", to: "1990-01-02" })).body));
+    expect(frictionlessValidator()(JSON.parse(text(files["datapackage.json"])))).toBe(true);
+    expect(csvRecords(files["data/flights.csv"])).toEqual([]);
+  });
+
   test("JSON export: one document, numbers equal to the database", async () => {
     const output = await run(LOCAL_VIEWER, { source: "flight", flight: flights.formula, format: "json" });
     const doc = JSON.parse(text(await collect(output.body))) as { tables: { flights: Array<Record<string, unknown>>; levels: Array<Record<string, unknown>> }; lapsebank: { dataDictionary: Record<string, unknown> } };

@@ -35,6 +35,10 @@ describe("datapackage.json", () => {
     expect(ok).toBe(true);
   });
 
+  test("an export with no flights (and so no school) still validates", () => {
+    expect(validate(dataPackageDescriptor(facts({ schools: [], flightCount: 0, calibrationIds: [] }))), JSON.stringify(validate.errors)).toBe(true);
+  });
+
   test("the validator is not a rubber stamp: broken descriptors fail", () => {
     const good = dataPackageDescriptor(facts()) as { resources: Array<Record<string, unknown>>; name: string };
     expect(validate({ ...good, resources: [] })).toBe(false);
