@@ -5,7 +5,8 @@ import { z } from "zod";
 import { getDb } from "@/lib/db";
 import {
   calibrationInputSchema, createCalibration, createLayout, createPayload, createSensor, createSite, OverlappingCalibrationError,
-  payloadInputSchema, reprocessFlight, selectFlights, sensorInputSchema, siteInputSchema, updateCalibration, type ReprocessOutcome,
+  payloadInputSchema, reprocessFlight, selectFlights, sensorInputSchema, siteInputSchema, suggestLayout, updateCalibration,
+  type LayoutSuggestion, type ReprocessOutcome,
 } from "@/lib/ingest";
 import { loggerLayoutSpecSchema } from "@/lib/ingest/layout";
 import { analysisParametersSchema } from "@/lib/ingest/schemas";
@@ -236,6 +237,18 @@ export async function previewLayout(formData: FormData): Promise<ActionResult<La
   if (!spec.success) return zodFailure(spec.error, "Complete the layout to see the preview");
   const bytes = new Uint8Array(await file.slice(0, 64 * 1024 + 1).arrayBuffer());
   return actionOk(await previewLayoutSample(bytes, spec.data, file.name || "sample"));
+}
+
+/** A layout guessed from the start of a sample file (delimiter, header, columns), for the editor to start from. */
+export async function suggestLayoutFromSample(formData: FormData): Promise<ActionResult<LayoutSuggestion>> {
+  const file = formData.get("file");
+  if (!(file instanceof File)) return actionFailure("Drop a sample file first");
+  const text = new TextDecoder("utf-8").decode(new Uint8Array(await file.slice(0, 16 * 1024).arrayBuffer()));
+  try {
+    return actionOk(suggestLayout(text, (file.name || "New layout").replace(/\.[^.]+$/, "")));
+  } catch (error) {
+    return actionFailure(`No layout could be guessed from this file: ${error instanceof Error ? error.message : String(error)}`);
+  }
 }
 
 // --- program parameters --------------------------------------------------------------------------

@@ -4,7 +4,7 @@ import { useEffect, useId, useRef, useState, type DragEvent, type FormEvent } fr
 import { useRouter } from "next/navigation";
 import type { LoggerLayoutSpec } from "@/lib/ingest/layout";
 import type { LayoutPreview } from "@/lib/ingest/setup-more";
-import { previewLayout, saveLayout } from "@/app/setup/actions";
+import { previewLayout, saveLayout, suggestLayoutFromSample } from "@/app/setup/actions";
 import { Field, FieldErrorList, FormMessage } from "./form-bits";
 
 type ColumnKey = keyof LoggerLayoutSpec["columns"];
@@ -70,6 +70,7 @@ export function LayoutForm({ initial, schools }: { initial: { id?: string; schoo
   const [saved, setSaved] = useState<string | null>(null);
   const [busy, setBusy] = useState(false);
   const [dragging, setDragging] = useState(false);
+  const [notes, setNotes] = useState<string[]>([]);
   const request = useRef(0);
   const spec = buildSpec(base, columns);
   const specKey = JSON.stringify(spec);
@@ -100,6 +101,18 @@ export function LayoutForm({ initial, schools }: { initial: { id?: string; schoo
     setDragging(false);
     const file = event.dataTransfer.files[0];
     if (file) setSample(file);
+  }
+
+  async function fillFromSample() {
+    if (!sample) return;
+    const form = new FormData();
+    form.append("file", sample);
+    const result = await suggestLayoutFromSample(form);
+    if (!result.ok) { setPreviewError(result.message); return; }
+    const suggested = result.data.spec;
+    setBase({ name: base.name || suggested.name, delimiter: suggested.delimiter, hasHeader: suggested.hasHeader, commentPrefix: suggested.commentPrefix ?? "", decimalSeparator: suggested.decimalSeparator });
+    setColumns(columnsFrom(suggested));
+    setNotes(result.data.notes);
   }
 
   async function submit(event: FormEvent) {
@@ -199,9 +212,11 @@ export function LayoutForm({ initial, schools }: { initial: { id?: string; schoo
           <label htmlFor={`${uid}-sample`}>Drop a sample logger file here, or choose one</label>{" "}
           <input id={`${uid}-sample`} type="file" onChange={(e) => setSample(e.target.files?.[0] ?? null)} />
           <p className="small muted">Only the first 64 KB are read; nothing is stored.</p>
+          {sample && <p className="actions"><button type="button" className="button-secondary" onClick={fillFromSample}>Fill in the layout from this sample</button></p>}
+          {notes.length > 0 && <ul className="small">{notes.map((n) => <li key={n}>{n}</li>)}</ul>}
         </div>
         <div role="status" aria-live="polite" className="small">
-          {sample ? (previewing ? `Reading ${sample.name}…` : preview ? `${preview.fileName}: ${preview.dataRowCount} data rows read${preview.partial ? " from the first 64 KB" : ""}, ${preview.skipped.length} row(s) not readable.` : "") : "No sample file yet."}
+          {sample ? (previewing ? `Reading ${sample.name}…` : preview ? (preview.issues.length ? `${preview.fileName}: not readable with this layout.` : `${preview.fileName}: ${preview.dataRowCount} data rows read${preview.partial ? " from the first 64 KB" : ""}, ${preview.skipped.length} row(s) not readable.`) : "") : "No sample file yet."}
         </div>
         {previewError && <p className="notice notice-warn">{previewError}</p>}
         {preview && preview.issues.length > 0 && (
