@@ -51,36 +51,42 @@ function archiveWhere(viewer: Viewer, filter: ArchiveFilter): Prisma.FlightWhere
 export async function listFlights(viewer: Viewer, filter: ArchiveFilter, db: Db = getDb()): Promise<{ total: number; rows: FlightListRow[]; page: number; pageSize: number }> {
   const where = archiveWhere(viewer, filter);
   const summarySort = filter.sort.startsWith("tropopause") || filter.sort.startsWith("lapse");
-  const [total, flights] = await Promise.all([
-    db.flight.count({ where }),
-    summarySort
-      ? db.flight.findMany({ where, select: { id: true } })
-      : db.flight.findMany({ where, orderBy: SORTS[filter.sort], skip: (filter.page - 1) * filter.pageSize, take: filter.pageSize, select: { id: true } }),
-  ]);
-  let ids = flights.map((f) => f.id);
+  const skip = (filter.page - 1) * filter.pageSize;
+  let ids: string[];
+  let total: number;
+  if (summarySort) {
+    // Sort on the current summary in the database (nulls last), paging there too.
+    const key = filter.sort.startsWith("tropopause") ? "tropopauseAltitudeM" : "troposphericLapseRateKPerKm";
+    const direction = filter.sort.endsWith("asc") ? "asc" : "desc";
+    const summaryWhere: Prisma.FlightSummaryWhereInput = { isCurrent: true, flight: where };
+    const [count, summaries] = await Promise.all([
+      db.flight.count({ where }),
+      db.flightSummary.findMany({
+        where: summaryWhere,
+        orderBy: [{ [key]: { sort: direction, nulls: "last" } }, { flightId: "asc" }],
+        skip,
+        take: filter.pageSize,
+        select: { flightId: true },
+      }),
+    ]);
+    total = count;
+    ids = summaries.map((s) => s.flightId);
+  } else {
+    const [count, flights] = await Promise.all([
+      db.flight.count({ where }),
+      db.flight.findMany({ where, orderBy: SORTS[filter.sort], skip, take: filter.pageSize, select: { id: true } }),
+    ]);
+    total = count;
+    ids = flights.map((f) => f.id);
+  }
   const include = {
     school: { select: { name: true } },
     site: { select: { name: true } },
     summaries: { where: { isCurrent: true }, take: 1 },
   } as const;
-  let rows = await db.flight.findMany({ where: { id: { in: ids } }, include });
-  if (summarySort) {
-    const key = filter.sort.startsWith("tropopause") ? "tropopauseAltitudeM" : "troposphericLapseRateKPerKm";
-    const sign = filter.sort.endsWith("asc") ? 1 : -1;
-    rows.sort((a, b) => {
-      const va = a.summaries[0]?.[key] ?? null;
-      const vb = b.summaries[0]?.[key] ?? null;
-      if (va === null && vb === null) return a.id.localeCompare(b.id);
-      if (va === null) return 1;
-      if (vb === null) return -1;
-      return sign * (va - vb) || a.id.localeCompare(b.id);
-    });
-    rows = rows.slice((filter.page - 1) * filter.pageSize, filter.page * filter.pageSize);
-  } else {
-    const order = new Map(ids.map((id, i) => [id, i]));
-    rows.sort((a, b) => (order.get(a.id) ?? 0) - (order.get(b.id) ?? 0));
-  }
-  ids = rows.map((r) => r.id);
+  const rows = await db.flight.findMany({ where: { id: { in: ids } }, include });
+  const order = new Map(ids.map((id, i) => [id, i]));
+  rows.sort((a, b) => (order.get(a.id) ?? 0) - (order.get(b.id) ?? 0));
   return {
     total,
     page: filter.page,
