@@ -141,11 +141,11 @@ export async function getProgramSettings(db: Db = getDb()) {
   return { parameters, defaults: DEFAULT_PARAMETERS, updatedAt: row ? iso(row.updatedAt) : null, isDefault: !row };
 }
 
-/** Rows for the re-analysis list: the flights of a selection with their current run's numbers. */
-export async function listFlightsForReprocess(flightIds: string[], db: Db = getDb()) {
+/** Rows for the re-analysis list: the flights of a selection the viewer may see, with their current run's numbers. */
+export async function listFlightsForReprocess(viewer: Viewer, flightIds: string[], db: Db = getDb()) {
   if (flightIds.length === 0) return [];
   const flights = await db.flight.findMany({
-    where: { id: { in: flightIds }, deletedAt: null },
+    where: { AND: [{ id: { in: flightIds } }, flightVisibilityWhere(viewer)] },
     include: { school: { select: { name: true } }, runs: { where: { isCurrent: true }, include: { summary: { select: { tropopauseAltitudeM: true, troposphericLapseRateKPerKm: true } } } } },
   });
   const order = new Map(flightIds.map((id, i) => [id, i]));

@@ -158,4 +158,44 @@ describe("Setup server actions (SQLite)", () => {
     }
     expect(await database.db.site.count({ where: { name: "Nope" } })).toBe(0);
   });
+
+  test("JSON API: overlap answers 409 in the one error shape; re-analysis streams one NDJSON line per flight and a summary", async () => {
+    const calibrations = await import("../../app/api/v1/setup/calibrations/route.ts");
+    const overlap = await calibrations.POST(new Request("http://local/api/v1/setup/calibrations", {
+      method: "POST", headers: { "content-type": "application/json" },
+      body: JSON.stringify({ sensorId: ids.sensor.id, spec: LINEAR_10BIT_CALIBRATION, validFromUtc: "2024-05-01T00:00:00Z", method: "two-point" }),
+    }));
+    expect(overlap.status).toBe(409);
+    const body = (await overlap.json()) as { error: { code: string; message: string } };
+    expect(body.error.code).toBe("overlapping-calibration");
+    expect(body.error.message).toContain(`overlaps calibration ${ids.calibration.id}`);
+
+    const invalid = await calibrations.POST(new Request("http://local/api/v1/setup/calibrations", { method: "POST", headers: { "content-type": "application/json" }, body: JSON.stringify({ sensorId: ids.sensor.id }) }));
+    expect(invalid.status).toBe(400);
+
+    const reprocess = await import("../../app/api/v1/setup/reprocess/route.ts");
+    const response = await reprocess.POST(new Request("http://local/api/v1/setup/reprocess", {
+      method: "POST", headers: { "content-type": "application/json" },
+      body: JSON.stringify({ selection: { calibrationId: ids.calibration.id }, reason: "api test", force: true }),
+    }));
+    expect(response.headers.get("content-type")).toContain("application/x-ndjson");
+    const lines = (await response.text()).trim().split("\n").map((line) => JSON.parse(line) as { type: string; total?: number; done?: number; reprocessed?: number; outcome?: { flightId: string; status: string } });
+    expect(lines.map((l) => l.type)).toEqual(["start", "progress", "summary"]);
+    expect(lines[1]?.outcome).toMatchObject({ flightId, status: "reprocessed" });
+    expect(lines[2]).toMatchObject({ total: 1, reprocessed: 1, failed: 0, interrupted: false });
+    const current = await database.db.analysisRun.findFirstOrThrow({ where: { flightId, isCurrent: true } });
+    expect(current.reason).toBe("api test");
+  });
+});
+
+describe("plain words for what changed", () => {
+  test.each([
+    { change: { tropopauseAltitudeDeltaM: 120.4, troposphericLapseRateDeltaKPerKm: -0.3, surfaceTemperatureDeltaK: null }, words: ["tropopause moved by +120 m", "lapse rate by −0.30 K/km"] },
+    { change: { tropopauseAltitudeDeltaM: -0.2, troposphericLapseRateDeltaKPerKm: 0.001, surfaceTemperatureDeltaK: -1.234 }, words: ["tropopause moved by 0 m", "lapse rate by 0.00 K/km", "surface temperature by −1.23 K"] },
+    { change: { tropopauseAltitudeDeltaM: null, troposphericLapseRateDeltaKPerKm: null, surfaceTemperatureDeltaK: null, tropopauseFoundChanged: true, calibrationChanged: true, layoutChanged: true, changedParameters: ["binSizeM"], analysisVersionChanged: { from: "1.0.0", to: "1.1.0" } }, words: ["tropopause found in one run only", "calibration changed", "logger layout changed", "parameters changed (binSizeM)", "analysis version 1.0.0 → 1.1.0"] },
+  ])("$words", async ({ change, words }) => {
+    const { describeChange } = await import("../../app/_components/setup/change-words.ts");
+    // [D] signs and rounding as shown to users: whole metres, hundredths of K/km and K, no "−0"
+    expect(describeChange({ calibrationChanged: false, analysisVersionChanged: null, ...change })).toEqual(words);
+  });
 });

@@ -23,7 +23,7 @@ function selectionOf(params: Awaited<SearchParams>): { selection: ReprocessSelec
 
 export default async function ReprocessPage({ searchParams }: { searchParams: SearchParams }) {
   await connection();
-  await getViewer();
+  const viewer = await getViewer();
   const params = await searchParams;
   const chosen = selectionOf(params);
   const reasonParam = typeof params.reason === "string" ? params.reason.slice(0, 200) : "";
@@ -36,7 +36,7 @@ export default async function ReprocessPage({ searchParams }: { searchParams: Se
     );
   }
   const ids = await selectFlights(getDb(), chosen.selection);
-  const flights = await listFlightsForReprocess(ids);
+  const flights = await listFlightsForReprocess(viewer, ids);
   return (
     <>
       <h1>Re-analysis</h1>

@@ -35,7 +35,7 @@ export const GET = withErrors(async (request: Request) => {
   const parsed = selectionSchema.safeParse(raw);
   if (!raw || !parsed.success) return jsonError(400, "invalid-request", "Give one of ?calibration=ID, ?layout=ID, ?flight=ID (repeatable) or ?all=1");
   const ids = await selectFlights(getDb(), parsed.data);
-  return jsonOk({ selection: parsed.data, flights: await listFlightsForReprocess(ids) });
+  return jsonOk({ selection: parsed.data, flights: await listFlightsForReprocess(await getViewer(), ids) });
 });
 
 /**
