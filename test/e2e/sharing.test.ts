@@ -141,12 +141,12 @@ describe("sharing across schools on two app processes", () => {
     for (let i = 0; i < 5; i++) {
       const { context, page } = await newContext();
       await signInThroughForm(page, i % 2 ? two : one, target, "wrong password!");
-      expect(await textOf(page.getByRole("alert"))).toContain("wrong");
+      expect(await textOf(page.getByRole("form", { name: "Sign in" }).getByRole("alert"))).toContain("wrong");
       await context.close();
     }
     const { context, page } = await newContext();
     await signInThroughForm(page, one, target);
-    expect(await textOf(page.getByRole("alert"))).toContain("Too many failed sign-in attempts");
+    expect(await textOf(page.getByRole("form", { name: "Sign in" }).getByRole("alert"))).toContain("Too many failed sign-in attempts");
     await context.close();
   });
 
