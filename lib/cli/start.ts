@@ -24,8 +24,8 @@ async function start(): Promise<void> {
   }
   await db.$disconnect();
 
-  if (!fs.existsSync(".next/BUILD_ID") || process.env.LAPSEBANK_REBUILD === "1") {
-    console.log("Building the web app (first start only)…");
+  if (buildIsStale() || process.env.LAPSEBANK_REBUILD === "1") {
+    console.log("Building the web app (first start, or the sources changed since the last build)…");
     const build = spawnSync("node_modules/.bin/next", ["build"], { stdio: "inherit" });
     if (build.status !== 0) process.exit(build.status ?? 1);
   }
@@ -33,6 +33,25 @@ async function start(): Promise<void> {
   const server = spawn("node_modules/.bin/next", ["start", "-p", String(env.PORT)], { stdio: "inherit" });
   for (const signal of ["SIGINT", "SIGTERM"] as const) process.on(signal, () => server.kill(signal));
   server.on("exit", (code) => process.exit(code ?? 0));
+}
+
+/** True when there is no production build or a source file is newer than it. */
+function buildIsStale(): boolean {
+  const buildId = ".next/BUILD_ID";
+  if (!fs.existsSync(buildId)) return true;
+  const builtAt = fs.statSync(buildId).mtimeMs;
+  const newest = (entry: string): number => {
+    if (!fs.existsSync(entry)) return 0;
+    const stat = fs.statSync(entry);
+    if (!stat.isDirectory()) return stat.mtimeMs;
+    let latest = 0;
+    for (const name of fs.readdirSync(entry)) {
+      if (name === "generated" || name === "node_modules") continue;
+      latest = Math.max(latest, newest(`${entry}/${name}`));
+    }
+    return latest;
+  };
+  return Math.max(...["app", "lib", "next.config.js", "package-lock.json", "prisma/schema.prisma"].map(newest)) > builtAt;
 }
 
 start().catch((error) => {
