@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { can } from "@/lib/auth/permissions";
+import { flightVisibilityWhere } from "@/lib/auth/visibility";
 import { getDb } from "@/lib/db";
 import { reprocessFlight, selectFlights, type ReprocessOutcome, type ReprocessSelection } from "@/lib/ingest";
 import { listFlightsForReprocess } from "@/lib/query/setup-pages";
@@ -51,8 +52,10 @@ export const POST = withErrors(async (request: Request) => {
   if (!checked.success) return validationError(checked.error);
   const viewer = await getViewer();
   const db = getDb();
-  const ids = await selectFlights(db, checked.data);
-  const schools = new Map((await db.flight.findMany({ where: { id: { in: ids } }, select: { id: true, schoolId: true } })).map((f) => [f.id, f.schoolId]));
+  // Only flights the caller may see are covered; of those, other schools' flights are reported as refused.
+  const selected = await selectFlights(db, checked.data);
+  const schools = new Map((await db.flight.findMany({ where: { AND: [{ id: { in: selected } }, flightVisibilityWhere(viewer)] }, select: { id: true, schoolId: true } })).map((f) => [f.id, f.schoolId]));
+  const ids = selected.filter((flightId) => schools.has(flightId));
   const encoder = new TextEncoder();
   const stream = new ReadableStream<Uint8Array>({
     async start(controller) {
