@@ -9,6 +9,7 @@ import { ClimatologyQueryForm, METRIC_CHOICES } from "@/app/_components/climatol
 import { ClaimResult, GroupFlights, GroupStatisticsTable, digitsForUnit } from "@/app/_components/climatology/result-tables";
 import { GroupBoxPlot, GroupProfiles, MetricScatter } from "@/app/_components/climatology/climatology-charts";
 import { buildClimatologyCharts } from "@/app/_components/climatology/chart-data";
+import { ExportPanel } from "@/app/_components/export/export-panel";
 
 export const metadata: Metadata = { title: "Climatology" };
 
@@ -98,6 +99,7 @@ export default async function ClimatologyPage({ searchParams }: { searchParams: 
           <GroupProfiles charts={charts} />
           <h2>Contributing flights</h2>
           {result.groups.map((g) => <GroupFlights key={g.key} group={g} unit={result.metric.unit} />)}
+          <ExportPanel source="climatology" query={record} flightCount={result.overall.n} />
         </section>
       )}
     </>

@@ -6,6 +6,7 @@ import { listSchoolsAndSites } from "@/lib/query/setup";
 import { getViewer } from "@/app/_lib/viewer";
 import { formatKmValue, formatLocalHour, formatNumber, formatSeason, formatUtc } from "@/app/_lib/format";
 import { ArchiveFilterForm } from "./_components/archive-filter-form";
+import { ExportPanel } from "@/app/_components/export/export-panel";
 import { Pager } from "./_components/pager";
 
 export const metadata: Metadata = { title: "Archive" };
@@ -106,6 +107,7 @@ export default async function ArchivePage({ searchParams }: { searchParams: Sear
             </table>
           </div>
           <Pager record={record} page={result.page} pageCount={pageCount} />
+          <ExportPanel source="archive" query={record} flightCount={result.total} />
         </>
       )}
     </>

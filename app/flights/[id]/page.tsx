@@ -7,6 +7,7 @@ import { getRunHistory } from "@/lib/query/setup-pages";
 import { RunHistoryPanel } from "@/app/_components/setup/run-history";
 import { Cautions } from "@/app/_components/cautions";
 import { ProfileChart } from "@/app/_components/profile-chart";
+import { ExportPanel } from "@/app/_components/export/export-panel";
 import { getViewer } from "@/app/_lib/viewer";
 import { FlightAdminPanel } from "./_components/flight-admin-panel";
 import { buildProfileChartData } from "@/app/_lib/profile-series";
@@ -197,6 +198,7 @@ export default async function FlightPage({ params }: { params: Params }) {
       <p className="small muted">
         JSON: <a href={`/api/v1/flights/${flight.id}`}>flight</a> · <a href={`/api/v1/flights/${flight.id}/levels`}>levels</a>
       </p>
+      <ExportPanel source="flight" flightId={flight.id} flightCount={1} />
     </>
   );
 }
