@@ -3,12 +3,14 @@ import Link from "next/link";
 import { connection } from "next/server";
 import { getProgramSettings, listSetupSchools } from "@/lib/query/setup-pages";
 import { getViewer } from "@/app/_lib/viewer";
+import { can } from "@/lib/auth/permissions";
+import { NewSchoolForm } from "./_components/new-school-form";
 
 export const metadata: Metadata = { title: "Setup" };
 
 export default async function SetupPage() {
   await connection();
-  await getViewer();
+  const viewer = await getViewer();
   const [schools, settings] = await Promise.all([listSetupSchools(), getProgramSettings()]);
   const p = settings.parameters;
   return (
@@ -38,7 +40,8 @@ export default async function SetupPage() {
           </tbody>
         </table>
       </div>
-      {schools.length === 0 && <p className="notice notice-warn">No school exists yet. <code>npm run lapsebank -- demo --yes</code> loads the invented demo program.</p>}
+      {schools.length === 0 && <p className="notice notice-warn">No school exists yet: add one below, or load the invented demo program with <code>npm run lapsebank -- demo --yes</code>.</p>}
+      {can(viewer, "program.settings", { schoolId: null }) && <NewSchoolForm />}
       <h2>Analysis parameters</h2>
       <p>
         Bin size {p.binSizeM} m, tropopause search from {p.tropopauseSearchFloorM} m, lag correction {p.lagCorrection.enabled ? `on (τ = ${p.lagCorrection.timeConstantS} s)` : "off"},

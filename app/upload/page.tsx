@@ -20,8 +20,8 @@ export default async function UploadPage() {
       </p>
       {choices.schools.length === 0 ? (
         <p className="notice notice-warn">
-          No school exists yet. Create one with the command line (<code>npm run lapsebank -- demo</code> loads the demo program)
-          until the Setup pages arrive.
+          No school exists yet. Add one on the <a href="/setup">Setup</a> page (program admins), or load the invented demo program
+          with <code>npm run lapsebank -- demo --yes</code>.
         </p>
       ) : (
         <UploadForm choices={choices} maxUploadMb={getEnv().LAPSEBANK_MAX_UPLOAD_MB} />
