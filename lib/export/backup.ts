@@ -208,8 +208,13 @@ function decodeRow(codec: ModelCodec, row: Row): Row {
   return out;
 }
 
-async function writeChunks(stream: fs.WriteStream, chunks: Uint8Array[]): Promise<void> {
+/** Zip offsets are 32-bit without ZIP64, which fflate does not write; a larger backup must stop, not corrupt. */
+export const MAX_BACKUP_BYTES = 0xffff_ffff;
+
+async function writeChunks(stream: fs.WriteStream, chunks: Uint8Array[], written: { bytes: number }): Promise<void> {
   for (const chunk of chunks) {
+    written.bytes += chunk.length;
+    if (written.bytes > MAX_BACKUP_BYTES) throw new Error("the backup would exceed 4 GiB, the zip limit without ZIP64; back up with the database's own tools (pg_dump, sqlite3 .backup) instead");
     if (!stream.write(chunk)) await once(stream, "drain");
   }
 }
@@ -224,6 +229,7 @@ export async function backupArchive(db: Db, file: string, options: { now?: Date;
   const stream = fs.createWriteStream(file);
   const manifest: BackupManifest = { format: BACKUP_FORMAT, formatVersion: BACKUP_FORMAT_VERSION, lapsebankVersion: packageJson.version, createdAtUtc: now.toISOString(), tables: [], rawFiles: 0 };
   const encoder = new TextEncoder();
+  const written = { bytes: 0 };
   try {
     for (const codec of BACKUP_MODELS) {
       const entry = { model: codec.model, rows: 0, parts: [] as string[] };
@@ -246,12 +252,12 @@ export async function backupArchive(db: Db, file: string, options: { now?: Date;
           entry.rows++;
         }
         part?.push(encoder.encode(text), false);
-        await writeChunks(stream, queue.take());
+        await writeChunks(stream, queue.take(), written);
         after = rows[rows.length - 1]?.id as string | number;
         options.onProgress?.(codec.model, entry.rows);
       }
       part?.push(new Uint8Array(0), true);
-      await writeChunks(stream, queue.take());
+      await writeChunks(stream, queue.take(), written);
       manifest.tables.push(entry);
     }
     let after: string | null = null;
@@ -260,7 +266,7 @@ export async function backupArchive(db: Db, file: string, options: { now?: Date;
       if (page.length === 0) break;
       for (const raw of page) {
         queue.entry(`raw/${raw.id}`, 1).push(new Uint8Array(raw.bytes), true);
-        await writeChunks(stream, queue.take());
+        await writeChunks(stream, queue.take(), written);
         manifest.rawFiles++;
       }
       after = page[page.length - 1]?.id ?? null;
@@ -268,7 +274,7 @@ export async function backupArchive(db: Db, file: string, options: { now?: Date;
     }
     queue.text("manifest.json", `${JSON.stringify(manifest, null, 2)}\n`);
     queue.end();
-    await writeChunks(stream, queue.take());
+    await writeChunks(stream, queue.take(), written);
     stream.end();
     await once(stream, "finish");
   } catch (error) {

@@ -315,8 +315,20 @@ async function* jsonChunks(handle: DbLike, viewer: Viewer, scope: ExportScope, o
   yield encoder.encode(`},"provenance":${JSON.stringify(provenance)}}\n`);
 }
 
-/** The zip data package, streamed. Tables first (gathering provenance), then the descriptor, citation and README. */
+/** Zip offsets are 32-bit without ZIP64 (fflate writes none): stop with a clear message rather than write a broken zip. */
+export const MAX_PACKAGE_BYTES = 0xffff_ffff;
+
 async function* packageChunks(handle: DbLike, viewer: Viewer, scope: ExportScope, options: ExportOptions, now: Date, pageSize: number): AsyncGenerator<Uint8Array> {
+  let bytes = 0;
+  for await (const chunk of packageEntries(handle, viewer, scope, options, now, pageSize)) {
+    bytes += chunk.length;
+    if (bytes > MAX_PACKAGE_BYTES) throw new Error("the data package would exceed 4 GiB, the zip limit without ZIP64; export fewer flights or leave out the raw files");
+    yield chunk;
+  }
+}
+
+/** The zip data package, streamed. Tables first (gathering provenance), then the descriptor, citation and README. */
+async function* packageEntries(handle: DbLike, viewer: Viewer, scope: ExportScope, options: ExportOptions, now: Date, pageSize: number): AsyncGenerator<Uint8Array> {
   const db = handle.db;
   const queue = new ZipQueue(now);
   const collected = newCollected();
