@@ -98,7 +98,11 @@ export default async function ClimatologyPage({ searchParams }: { searchParams: 
           <h2>Mean temperature profile per group</h2>
           <GroupProfiles charts={charts} />
           <h2>Contributing flights</h2>
-          {result.groups.map((g) => <GroupFlights key={g.key} group={g} unit={result.metric.unit} />)}
+          {parsed.query.flights === "none" ? (
+            <p className="muted">Flight lists were left out (flights=none in the address).</p>
+          ) : (
+            result.groups.map((g) => <GroupFlights key={g.key} group={g} unit={result.metric.unit} />)
+          )}
           <ExportPanel source="climatology" query={record} flightCount={result.overall.n} />
         </section>
       )}

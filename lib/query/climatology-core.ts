@@ -75,6 +75,7 @@ export interface GroupStatistics {
 export interface ClimatologyGroup extends GroupStatistics {
   key: string;
   label: string;
+  /** The contributing flights, by launch time; empty when the query asked for flights=none. */
   flights: ClimatologyFlight[];
 }
 
@@ -247,6 +248,12 @@ function candidateSql(viewer: Viewer, query: ClimatologyQuery, engine: SqlEngine
   const launchIso = engine === "sqlite" ? `substr(s."launchAtUtc", 1, 19) || 'Z'` : `to_char(s."launchAtUtc", 'YYYY-MM-DD"T"HH24:MI:SS"Z"')`;
   const band = bandLimitsM(query);
   const valueSql = band ? raw("NULL") : raw(METRIC_VALUE_SQL[query.metric as Exclude<ClimatologyMetric, "band-lapse-rate">]);
+  if (!band && query.flights === "none") {
+    // Summary only: the group key, the value and the site (for the claim's clustering caveat).
+    return sql`SELECT s."siteId" AS "siteId", ${groupKeySql(query, engine)} AS "groupKey", ${valueSql} AS "value"
+      FROM "FlightSummary" s JOIN "Flight" f ON f."id" = s."flightId"
+      WHERE ${where}`;
+  }
   const candidates = sql`SELECT s."flightId" AS "flightId", s."runId" AS "runId", f."title" AS "title", s."siteId" AS "siteId",
       s."schoolId" AS "schoolId", ${raw(launchIso)} AS "launchAtUtc", s."dayOfYear" AS "dayOfYear", s."localHour" AS "localHour",
       s."hoursAfterSunrise" AS "hoursAfterSunrise", ${groupKeySql(query, engine)} AS "groupKey", ${valueSql} AS "value"
@@ -490,7 +497,8 @@ export async function getClimatology(
   const excludedByReason = new Map<string, number>();
   const exclude = (reason: string) => excludedByReason.set(reason, (excludedByReason.get(reason) ?? 0) + 1);
   const bandWords = band ? `no coverage of ${kmText(band.baseM)}–${kmText(band.topM)} km (${query.phase})` : "";
-  const byGroup = new Map<string, ClimatologyFlight[]>();
+  const includeFlights = query.flights === "all";
+  const byGroup = new Map<string, { values: number[]; siteNames: string[]; flights: ClimatologyFlight[] }>();
 
   let gaps = new Map<string, number>();
   if (band) {
@@ -523,11 +531,19 @@ export async function getClimatology(
       exclude(query.groupBy === "hours-after-sunrise" ? "no sunrise at the site that day (polar day or night)" : "no group");
       continue;
     }
-    const flight: ClimatologyFlight = {
+    const siteName = names.sites.get(row.siteId) ?? row.siteId;
+    const entry = byGroup.get(key) ?? { values: [], siteNames: [], flights: [] };
+    byGroup.set(key, entry);
+    if (!includeFlights) {
+      entry.values.push(value);
+      entry.siteNames.push(siteName);
+      continue;
+    }
+    entry.flights.push({
       flightId: row.flightId,
       title: row.title,
       siteId: row.siteId,
-      siteName: names.sites.get(row.siteId) ?? row.siteId,
+      siteName,
       schoolId: row.schoolId,
       schoolName: names.schools.get(row.schoolId) ?? row.schoolId,
       launchAtUtc: row.launchAtUtc,
@@ -535,17 +551,21 @@ export async function getClimatology(
       localHour: toNumber(row.localHour) ?? 0,
       hoursAfterSunrise: toNumber(row.hoursAfterSunrise),
       value,
-    };
-    const list = byGroup.get(key) ?? [];
-    list.push(flight);
-    byGroup.set(key, list);
+    });
   }
 
+  const valuesOf = new Map<string, { values: number[]; siteNames: string[] }>();
   const groups: ClimatologyGroup[] = [...byGroup.entries()]
-    .map(([key, flights]) => {
+    .map(([key, entry]) => {
+      const flights = entry.flights;
       // Plain code-unit comparison: ISO times sort correctly and it is much cheaper than localeCompare on 10,000 rows.
       flights.sort((a, b) => (a.launchAtUtc < b.launchAtUtc ? -1 : a.launchAtUtc > b.launchAtUtc ? 1 : a.flightId < b.flightId ? -1 : a.flightId > b.flightId ? 1 : 0));
-      return { key, label: groupLabel(query, key, names), ...statistics(flights.map((f) => f.value)), flights };
+      if (includeFlights) {
+        entry.values = flights.map((f) => f.value);
+        entry.siteNames = flights.map((f) => f.siteName);
+      }
+      valuesOf.set(key, entry);
+      return { key, label: groupLabel(query, key, names), ...statistics(entry.values), flights };
     })
     .sort((a, b) => {
       const [ra, ta] = groupOrder(query, a.key, a.label);
@@ -554,7 +574,7 @@ export async function getClimatology(
     });
   const excluded = [...excludedByReason.entries()].map(([reason, count]) => ({ reason, count })).sort((a, b) => b.count - a.count);
   const excludedCount = excluded.reduce((s, e) => s + e.count, 0);
-  const allValues = groups.flatMap((g) => g.flights.map((f) => f.value));
+  const allValues = groups.flatMap((g) => valuesOf.get(g.key)?.values ?? []);
 
   if (allValues.length === 0) {
     const why = excluded.length ? ` (${excluded.map((e) => `${e.count} excluded: ${e.reason}`).join("; ")})` : "";
@@ -565,12 +585,11 @@ export async function getClimatology(
   let claim: ClaimCheckResult | null = null;
   const metricLabel = band ? `${metric.label} ${kmText(band.baseM)}–${kmText(band.topM)} km` : metric.label;
   if (query.claim === "one-sample" && query.claimValue !== undefined) {
-    const flights = groups.flatMap((g) => g.flights);
     claim = runClaimCheck({
       kind: "one-sample",
       alternative: query.claimSide,
       statedValue: query.claimValue,
-      group: { label: "all flights", values: flights.map((f) => f.value), siteIds: flights.map((f) => f.siteName) },
+      group: { label: "all flights", values: allValues, siteIds: groups.flatMap((g) => valuesOf.get(g.key)?.siteNames ?? []) },
       metricLabel,
       unit: metric.unit,
     });
@@ -586,8 +605,8 @@ export async function getClimatology(
       claim = runClaimCheck({
         kind: "two-group",
         alternative: query.claimSide,
-        groupA: { label: query.groupA?.label ?? "A", values: a.flights.map((f) => f.value), siteIds: a.flights.map((f) => f.siteName) },
-        groupB: { label: query.groupB?.label ?? "B", values: b.flights.map((f) => f.value), siteIds: b.flights.map((f) => f.siteName) },
+        groupA: { label: query.groupA?.label ?? "A", values: valuesOf.get("A")?.values ?? [], siteIds: valuesOf.get("A")?.siteNames ?? [] },
+        groupB: { label: query.groupB?.label ?? "B", values: valuesOf.get("B")?.values ?? [], siteIds: valuesOf.get("B")?.siteNames ?? [] },
         metricLabel,
         unit: metric.unit,
       });

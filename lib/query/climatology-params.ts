@@ -217,6 +217,8 @@ const climatologyBaseSchema = z.object({
       .default(3),
   ),
   chartX: enumWithDefault(SCATTER_AXES, "day-of-year", "chartX"),
+  /** "none" returns the group statistics without the contributing flights (faster on large archives). */
+  flights: enumWithDefault(["all", "none"] as const, "all", "flights"),
   claim: enumWithDefault(CLAIM_KINDS, "none", "claim"),
   claimValue: optionalNumber("claimValue", -1e6, 1e6),
   claimSide: enumWithDefault(CLAIM_SIDES, "two-sided", "claimSide"),
@@ -360,6 +362,7 @@ export function climatologySearchParams(query: ClimatologyQuery, raw: Record<str
   set("groupBy", query.groupBy);
   if (query.groupBy === "launch-hour" || query.groupBy === "hours-after-sunrise") set("binHours", query.binHours);
   if (query.chartX !== "day-of-year") set("chartX", query.chartX);
+  if (query.flights !== "all") set("flights", query.flights);
   if (query.claim !== "none") {
     set("claim", query.claim);
     set("claimSide", query.claimSide);

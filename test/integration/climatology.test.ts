@@ -98,6 +98,20 @@ describe.each(testEngines())("climatology on %s (demo subset)", (engine) => {
       expect(group.flights.every((f) => f.value === rows.find((r) => r.flightId === f.flightId)?.troposphericLapseRateKPerKm)).toBe(true);
     }
     expect(result.overall.n).toBe(rows.length);
+    // The summary-only form (flights=none) gives the same statistics without the flight lists.
+    const lean = await getClimatology(LOCAL, query({ groupBy: "season", flights: "none", claim: "one-sample", claimValue: "6.5" }), database);
+    const full = await getClimatology(LOCAL, query({ groupBy: "season", claim: "one-sample", claimValue: "6.5" }), database);
+    expect(lean.groups.map((g) => g.key)).toEqual(full.groups.map((g) => g.key));
+    lean.groups.forEach((g, i) => {
+      const f = full.groups[i];
+      expect(g.flights).toEqual([]);
+      expect(g.n).toBe(f?.n);
+      expect(g.median).toBe(f?.median);
+      expect(g.mean).toBeCloseTo(f?.mean ?? Number.NaN, 10);
+      expect(g.sd).toBeCloseTo(f?.sd ?? Number.NaN, 10);
+      expect(g.ci95High).toBeCloseTo(f?.ci95High ?? Number.NaN, 10);
+    });
+    expect(lean.claim?.p).toBeCloseTo(full.claim?.p ?? Number.NaN, 10);
   });
 
   test("filters (site, months, launch hour, QC) select the same flights as a filter written in the test", async () => {
