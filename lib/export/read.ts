@@ -146,7 +146,8 @@ export async function climatologyScope(handle: DbLike, viewer: Viewer, queryReco
   if (!parsed.ok) throw new ExportRequestError(422, "invalid-query", parsed.message);
   let result;
   try {
-    result = await getClimatology(viewer, parsed.query, handle, { profiles: false });
+    // The export needs the contributing flights even when the page asked for statistics only.
+    result = await getClimatology(viewer, { ...parsed.query, flights: "all" }, handle, { profiles: false });
   } catch (error) {
     if (error instanceof ClimatologyQueryError) throw new ExportRequestError(422, error.code, error.field ? `${error.field}: ${error.message}` : error.message);
     throw error;

@@ -203,6 +203,14 @@ describe.each(testEngines())("export on %s", (engine) => {
     expect(frictionlessValidator()(descriptor)).toBe(true);
   });
 
+  test("a Climatology page in its statistics-only form (flights=none) still exports every contributing flight", async () => {
+    const query = { metric: "tropospheric-lapse-rate", groupBy: "none", qc: "include" };
+    const all = csvRecords(await collect((await run(LOCAL_VIEWER, { source: "climatology", format: "csv", table: "query-values", ...query })).body));
+    const summaryOnly = csvRecords(await collect((await run(LOCAL_VIEWER, { source: "climatology", format: "csv", table: "query-values", ...query, flights: "none" })).body));
+    expect(all.length).toBe(3);
+    expect(summaryOnly).toEqual(all);
+  });
+
   test("a claim check exports through the same code, with its verdict in the package metadata", async () => {
     const query = { metric: "tropospheric-lapse-rate", groupBy: "none", qc: "include", claim: "one-sample", claimValue: "6.5" };
     const files = unzipSync(await collect((await run(LOCAL_VIEWER, { source: "climatology", format: "package", ...query })).body));
