@@ -7,7 +7,7 @@
  */
 import type { DbHandle, Db, Prisma } from "../db/index.ts";
 import { flightVisibilityWhere, type Viewer } from "../auth/visibility.ts";
-import { archiveFilterSchema, type ArchiveFilter } from "../query/archive-filter.ts";
+import { archiveFilterSchema, archiveFlightWhere, type ArchiveFilter } from "../query/archive-filter.ts";
 import { ClimatologyQueryError, getClimatology } from "../query/climatology-core.ts";
 import { climatologySearchParams, parseClimatologyQuery } from "../query/climatology-params.ts";
 import type { ExportOptions } from "./request.ts";
@@ -50,22 +50,6 @@ export interface ExportScope {
 
 type DbLike = Pick<DbHandle, "db" | "engine">;
 
-/**
- * The Archive filter as a Prisma condition: the same conditions as lib/query/flights.ts listFlights
- * (an integration test checks both list the same flights), ignoring paging and sort.
- */
-export function archiveExportWhere(viewer: Viewer, filter: ArchiveFilter): Prisma.FlightWhereInput {
-  const and: Prisma.FlightWhereInput[] = [flightVisibilityWhere(viewer)];
-  if (filter.school) and.push({ schoolId: filter.school });
-  if (filter.site) and.push({ siteId: filter.site });
-  if (filter.from) and.push({ launchAtUtc: { gte: filter.from } });
-  if (filter.to) and.push({ launchAtUtc: { lt: new Date(filter.to.getTime() + 86_400_000) } });
-  if (filter.season) {
-    const bySeason = ["DJF", "MAM", "JJA", "SON"].includes(filter.season) ? { season: filter.season } : { seasonName: filter.season };
-    and.push({ summaries: { some: { isCurrent: true, ...bySeason } } });
-  }
-  return { AND: and };
-}
 
 const ID_PAGE = 5000;
 
@@ -128,7 +112,7 @@ export async function resolveExportScope(handle: DbLike, viewer: Viewer, options
         throw new ExportRequestError(422, "invalid-query", parsed.error.issues.map((i) => `${i.path.join(".") || "query"}: ${i.message}`).join("; "));
       }
       const filter = parsed.data;
-      const flightIds = await idsWhere(handle.db, archiveExportWhere(viewer, filter));
+      const flightIds = await idsWhere(handle.db, archiveFlightWhere(viewer, filter));
       const parameters = archiveParameters(filter);
       return { flightIds, queryValues: null, description: { source: "archive", summary: describeArchiveFilter(filter), parameters, pagePath: pathWithQuery("/flights", parameters) } };
     }

@@ -1,4 +1,6 @@
 import { z } from "zod";
+import type { Prisma } from "../db/index.ts";
+import { flightVisibilityWhere, type Viewer } from "../auth/visibility.ts";
 
 const blankToUndefined = (v: unknown) => (v === "" || v === null ? undefined : v);
 
@@ -28,4 +30,21 @@ export function searchParamsToRecord(params: URLSearchParams | Record<string, st
     }
   }
   return out;
+}
+
+/**
+ * The Archive filter as a Prisma condition on flights, visibility included. The one definition,
+ * used by the Archive list (lib/query/flights.ts) and by Archive exports (lib/export/read.ts).
+ */
+export function archiveFlightWhere(viewer: Viewer, filter: Pick<ArchiveFilter, "school" | "site" | "from" | "to" | "season">): Prisma.FlightWhereInput {
+  const and: Prisma.FlightWhereInput[] = [flightVisibilityWhere(viewer)];
+  if (filter.school) and.push({ schoolId: filter.school });
+  if (filter.site) and.push({ siteId: filter.site });
+  if (filter.from) and.push({ launchAtUtc: { gte: filter.from } });
+  if (filter.to) and.push({ launchAtUtc: { lt: new Date(filter.to.getTime() + 86_400_000) } });
+  if (filter.season) {
+    const bySeason = ["DJF", "MAM", "JJA", "SON"].includes(filter.season) ? { season: filter.season } : { seasonName: filter.season };
+    and.push({ summaries: { some: { isCurrent: true, ...bySeason } } });
+  }
+  return { AND: and };
 }

@@ -1,7 +1,7 @@
 import "server-only";
 import { getDb, type Db, type Prisma } from "../db/index.ts";
 import { flightVisibilityWhere, type Viewer } from "../auth/visibility.ts";
-import type { ArchiveFilter } from "./archive-filter.ts";
+import { archiveFlightWhere, type ArchiveFilter } from "./archive-filter.ts";
 
 export interface FlightListRow {
   id: string;
@@ -34,22 +34,10 @@ const SORTS: Record<ArchiveFilter["sort"], Prisma.FlightOrderByWithRelationInput
   "lapse-asc": [{ launchAtUtc: "desc" }],
 };
 
-function archiveWhere(viewer: Viewer, filter: ArchiveFilter): Prisma.FlightWhereInput {
-  const and: Prisma.FlightWhereInput[] = [flightVisibilityWhere(viewer)];
-  if (filter.school) and.push({ schoolId: filter.school });
-  if (filter.site) and.push({ siteId: filter.site });
-  if (filter.from) and.push({ launchAtUtc: { gte: filter.from } });
-  if (filter.to) and.push({ launchAtUtc: { lt: new Date(filter.to.getTime() + 86_400_000) } });
-  if (filter.season) {
-    const bySeason = ["DJF", "MAM", "JJA", "SON"].includes(filter.season) ? { season: filter.season } : { seasonName: filter.season };
-    and.push({ summaries: { some: { isCurrent: true, ...bySeason } } });
-  }
-  return { AND: and };
-}
 
 /** The Archive: filtered, sorted, paged flights with their current summary numbers. */
 export async function listFlights(viewer: Viewer, filter: ArchiveFilter, db: Db = getDb()): Promise<{ total: number; rows: FlightListRow[]; page: number; pageSize: number }> {
-  const where = archiveWhere(viewer, filter);
+  const where = archiveFlightWhere(viewer, filter);
   const summarySort = filter.sort.startsWith("tropopause") || filter.sort.startsWith("lapse");
   const skip = (filter.page - 1) * filter.pageSize;
   let ids: string[];
