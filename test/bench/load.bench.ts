@@ -1,27 +1,17 @@
 import { spawn, spawnSync } from "node:child_process";
 import fs from "node:fs";
-import net from "node:net";
 import path from "node:path";
 import { createApiToken, createUser } from "../../lib/auth/accounts.ts";
 import { loadDemoProgram } from "../../seed/load.ts";
 import { makeFlightFile } from "../support/flight-files.ts";
 import { createTestDatabase, type Engine } from "../support/test-databases.ts";
 import type { BenchResult } from "./types.ts";
+import { freeLoopbackPort } from "../support/free-port.ts";
 
 const READERS = 50;
 const UPLOADERS = 5;
 const SECONDS = Number(process.env.LAPSEBANK_LOAD_SECONDS ?? 60);
 
-function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const probe = net.createServer();
-    probe.on("error", reject);
-    probe.listen(0, "127.0.0.1", () => {
-      const address = probe.address();
-      probe.close(() => resolve(typeof address === "object" && address ? address.port : 0));
-    });
-  });
-}
 
 function percentile(sorted: number[], p: number): number {
   if (sorted.length === 0) return Number.NaN;
@@ -40,7 +30,7 @@ export async function benchLoad(engines: Engine[]): Promise<BenchResult[]> {
     if (build.status !== 0) throw new Error("next build failed");
   }
   const database = await createTestDatabase(engine);
-  const port = await freePort();
+  const port = await freeLoopbackPort();
   const base = `http://127.0.0.1:${port}`;
   let server: ReturnType<typeof spawn> | null = null;
   try {

@@ -1,5 +1,4 @@
 import { spawn, type ChildProcess } from "node:child_process";
-import net from "node:net";
 import path from "node:path";
 import { chromium, type Browser, type BrowserContext, type Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
@@ -9,6 +8,7 @@ import { ingestFlightFile } from "../../lib/ingest/index.ts";
 import { CHROMIUM_PATH } from "../support/e2e-browser.ts";
 import { makeFlightFile, setUpSchool } from "../support/flight-files.ts";
 import { createTestDatabase, testEngines, type TestDatabase } from "../support/test-databases.ts";
+import { freeLoopbackPort } from "../support/free-port.ts";
 
 // Program-wide sharing on one database served by TWO app processes (nothing may live in one
 // process's memory): sessions, login rate limits and visibility must hold across both.
@@ -20,19 +20,9 @@ const bases: string[] = [];
 let browser: Browser;
 const ids = { privateA: "", programB: "", schoolA: "", schoolB: "", siteA: "", layoutA: "", sensorA: "" };
 
-function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const probe = net.createServer();
-    probe.on("error", reject);
-    probe.listen(0, "127.0.0.1", () => {
-      const address = probe.address();
-      probe.close(() => resolve(typeof address === "object" && address ? address.port : 0));
-    });
-  });
-}
 
 async function startApp(url: string): Promise<string> {
-  const port = await freePort();
+  const port = await freeLoopbackPort();
   const server = spawn(path.resolve("node_modules/.bin/next"), ["start", "-H", "127.0.0.1", "-p", String(port)], {
     env: { ...process.env, DATABASE_URL: url, NODE_ENV: "production", PORT: String(port) },
     stdio: ["ignore", "pipe", "pipe"],

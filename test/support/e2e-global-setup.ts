@@ -1,9 +1,9 @@
 import { spawn, spawnSync, type ChildProcess } from "node:child_process";
 import fs from "node:fs";
-import net from "node:net";
 import os from "node:os";
 import path from "node:path";
 import type { TestProject } from "vitest/node";
+import { freeLoopbackPort } from "./free-port.ts";
 
 declare module "vitest" {
   export interface ProvidedContext {
@@ -107,19 +107,6 @@ function loopbackOnly(url: string): string {
   return parsed.origin;
 }
 
-/** Asks the OS for a free port on 127.0.0.1, then releases it for next to take. */
-function freeLoopbackPort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const probe = net.createServer();
-    probe.unref();
-    probe.on("error", reject);
-    probe.listen(0, "127.0.0.1", () => {
-      const address = probe.address();
-      const port = typeof address === "object" && address ? address.port : 0;
-      probe.close(() => (port ? resolve(port) : reject(new Error("could not find a free port"))));
-    });
-  });
-}
 
 async function waitUntilAnswering(baseUrl: string, server: ChildProcess, output: { text: string }): Promise<void> {
   const deadline = Date.now() + SERVER_START_LIMIT_MS;
