@@ -8,3 +8,4 @@ export * from "./t-tests";
 export * from "./mann-whitney";
 export * from "./effect-size";
 export * from "./power";
+export * from "./claims";
