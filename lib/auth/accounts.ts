@@ -109,7 +109,11 @@ async function memberViewer(db: Db, userId: string, extra: { schoolId?: string; 
   const user = await db.user.findUnique({ where: { id: userId }, include: { memberships: true } });
   if (!user) return null;
   let memberships = user.memberships.map((m) => ({ schoolId: m.schoolId, role: m.role as Role }));
-  if (extra.schoolId) memberships = memberships.filter((m) => m.schoolId === extra.schoolId);
+  if (extra.schoolId) {
+    memberships = memberships.filter((m) => m.schoolId === extra.schoolId);
+    // A program admin's token acts as a school admin of its one school, nothing wider.
+    if (memberships.length === 0 && user.isProgramAdmin) memberships = [{ schoolId: extra.schoolId, role: "school-admin" }];
+  }
   return {
     kind: "member",
     userId: user.id,

@@ -152,6 +152,15 @@ describe.each(testEngines())("accounts, tokens and visibility on %s", (engine) =
     expect(await resolveViewer(database.db, { authorization: `Bearer ${token}` })).toEqual({ viewer: null, error: "invalid-token" });
   });
 
+  test("a program admin's token acts for its one school only", async () => {
+    const admin = await database.db.user.findUniqueOrThrow({ where: { email: "admin@example.org" } });
+    const { token } = await createApiToken(database.db, { userId: admin.id, schoolId: a.school.id, name: "admin upload", scopes: ["upload"] });
+    const viewer = (await resolveViewer(database.db, { authorization: `Bearer ${token}` })).viewer!;
+    expect(can(viewer, "flight.upload", { schoolId: a.school.id })).toBe(true);
+    expect(can(viewer, "flight.upload", { schoolId: b.school.id })).toBe(false);
+    expect(can(viewer, "program.settings", { schoolId: null })).toBe(false);
+  });
+
   test("edits, visibility changes and soft deletes are checked and audited; an admin restores", async () => {
     const alice = await database.db.user.findUniqueOrThrow({ where: { email: "alice@example.org" } });
     const session = await signIn(database.db, { email: "alice@example.org", password }, "127.0.0.2");
