@@ -11,6 +11,8 @@ import { freeLoopbackPort } from "../support/free-port.ts";
 const READERS = 50;
 const UPLOADERS = 5;
 const SECONDS = Number(process.env.LAPSEBANK_LOAD_SECONDS ?? 60);
+/** A simulated person reads (or picks the next file) before asking again: 1–3 s, uniformly [P: common load-test practice]. */
+const THINK_MS = () => 1000 + Math.random() * 2000;
 
 
 function percentile(sorted: number[], p: number): number {
@@ -93,6 +95,7 @@ export async function benchLoad(engines: Engine[]): Promise<BenchResult[]> {
         } catch {
           errors++;
         }
+        await new Promise((r) => setTimeout(r, THINK_MS()));
       }
     };
     let seed = 10_000;
@@ -112,6 +115,7 @@ export async function benchLoad(engines: Engine[]): Promise<BenchResult[]> {
         } catch {
           errors++;
         }
+        await new Promise((r) => setTimeout(r, THINK_MS()));
       }
     };
     const started = performance.now();
@@ -123,7 +127,7 @@ export async function benchLoad(engines: Engine[]): Promise<BenchResult[]> {
     const p95 = percentile(latencies, 95);
     return [
       { name: `reads, 1 client, idle server (${engine}) p50 (baseline)`, value: percentile(baseline, 50), unit: "ms" },
-      { name: `load ${READERS} readers + ${UPLOADERS} uploaders, ${SECONDS} s: requests/s`, value: (latencies.length + uploadLatencies.length) / elapsedS, unit: "req/s", note: `${uploads} uploads stored` },
+      { name: `load ${READERS} readers (1–3 s think time) + ${UPLOADERS} uploaders (same pauses), ${SECONDS} s: requests/s`, value: (latencies.length + uploadLatencies.length) / elapsedS, unit: "req/s", note: `${uploads} uploads stored` },
       { name: "load: read latency p50", value: p50, unit: "ms", note: `${(p50 / percentile(baseline, 50)).toFixed(1)}× idle p50` },
       { name: "load: read latency p95", value: p95, unit: "ms", note: "target ≤ 500 ms" },
       { name: "load: upload latency p50 / p95", value: percentile(uploadLatencies, 50), unit: "ms", note: `p95 ${percentile(uploadLatencies, 95).toFixed(0)} ms` },
