@@ -3,7 +3,7 @@ import { ANALYSIS_VERSION, type TemperatureCalibration } from "../analysis/types
 import type { Db } from "../db/index.ts";
 import { IngestFailure } from "./errors.ts";
 import { directCalibrationFor, prepareAnalysis } from "./pipeline.ts";
-import { findCalibrationAt, getProgramParameters, parseStoredCalibration, parseStoredLayout, writeAnalysisRun, type Actor } from "./store.ts";
+import { findCalibrationAt, parametersForSensor, parseStoredCalibration, parseStoredLayout, writeAnalysisRun, type Actor } from "./store.ts";
 
 export type ReprocessSelection = { all: true } | { flightIds: string[] } | { calibrationId: string } | { layoutId: string };
 
@@ -81,7 +81,7 @@ export async function reprocessFlight(db: Db, flightId: string, options: { reaso
     const fileName = flight.rawFile.name;
     const layout = parseStoredLayout(flight.layout.spec, fileName);
     const calibration = await currentCalibrationFor(db, flight, previous, layout, fileName);
-    const parameters = await getProgramParameters(db);
+    const parameters = await parametersForSensor(db, flight.sensorId);
     const sameInputs =
       previous !== null &&
       previous.analysisVersion === ANALYSIS_VERSION &&

@@ -45,6 +45,18 @@ export async function getProgramParameters(db: Db | DbTransaction): Promise<Anal
   return parsed.success ? parsed.data : DEFAULT_PARAMETERS;
 }
 
+/**
+ * Program parameters for one flight: when lag correction is switched on, the flight's own sensor
+ * time constant is used (the program value is the fallback for sensors without one).
+ */
+export async function parametersForSensor(db: Db | DbTransaction, sensorId: string | null): Promise<AnalysisParameters> {
+  const parameters = await getProgramParameters(db);
+  if (!parameters.lagCorrection.enabled || !sensorId) return parameters;
+  const sensor = await db.sensor.findUnique({ where: { id: sensorId }, select: { timeConstantS: true } });
+  if (!sensor || !(sensor.timeConstantS > 0)) return parameters;
+  return { ...parameters, lagCorrection: { enabled: true, timeConstantS: sensor.timeConstantS } };
+}
+
 /** The sensor's calibration whose validity period contains `at` (latest start wins). */
 export async function findCalibrationAt(db: Db | DbTransaction, sensorId: string, at: Date) {
   return db.calibration.findFirst({
@@ -94,7 +106,7 @@ export async function ingestFlightFile(db: Db, request: IngestRequest, options: 
   const layout = parseStoredLayout(layoutRow.spec, fileName);
 
   const calibrationChoice = await chooseCalibration(db, { ...meta, fileName, layout, schoolId: meta.schoolId });
-  const parameters = await getProgramParameters(db);
+  const parameters = await parametersForSensor(db, meta.sensorId ?? null);
   const prepared = await prepareAnalysis({
     fileName, bytes, layout, site, parameters, mode: meta.mode,
     calibration: calibrationChoice.spec,

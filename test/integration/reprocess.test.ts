@@ -91,4 +91,15 @@ describe.each(testEngines())("reprocessing on %s", (engine) => {
     const after = await db.analysisRun.findFirstOrThrow({ where: { flightId: flightIds[1], isCurrent: true } });
     expect(after.id).toBe(before.id);
   });
+
+  test("with lag correction on, each flight uses its own sensor's time constant", async () => {
+    const db = database.db;
+    const parameters = { ...(await getProgramParameters(db)), lagCorrection: { enabled: true, timeConstantS: 3 } };
+    await db.programSettings.upsert({ where: { id: 1 }, update: { analysisParameters: parameters }, create: { id: 1, analysisParameters: parameters } });
+    const result = await reprocessFlights(db, { flightIds: [flightIds[0]!] }, { reason: "lag on" });
+    expect(result.outcomes[0]!.status).toBe("reprocessed");
+    const run = await db.analysisRun.findFirstOrThrow({ where: { flightId: flightIds[0], isCurrent: true } });
+    // setUpSchool's sensor has τ = 1 s; the program's 3 s is only the fallback.
+    expect((run.parameters as { lagCorrection: { timeConstantS: number } }).lagCorrection).toEqual({ enabled: true, timeConstantS: 1 });
+  });
 });
