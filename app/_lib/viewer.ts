@@ -14,9 +14,12 @@ import { getDb } from "@/lib/db";
  */
 export const getViewer = cache(async (): Promise<Viewer> => {
   const [cookieStore, headerStore] = await Promise.all([cookies(), headers()]);
+  // API tokens are for scripts calling /api/v1; a server action (a browser form) acts only with the
+  // signed-in session, so a token can never reach account or setup actions.
+  const isServerAction = headerStore.has("next-action");
   const resolution = await resolveViewer(getDb(), {
     sessionSecret: cookieStore.get(SESSION_COOKIE)?.value,
-    authorization: headerStore.get("authorization"),
+    authorization: isServerAction ? null : headerStore.get("authorization"),
   });
   if (!resolution.viewer) throw new PermissionError(401, "The API token is unknown or has been revoked");
   return resolution.viewer;

@@ -18,6 +18,14 @@ function fieldErrorsOf(error: z.ZodError): Record<string, string[]> {
   return out;
 }
 
+/** A same-site path to go to after signing in; anything that could leave the site falls back. */
+function safeNext(value: FormDataEntryValue | null, fallback: string): string {
+  const next = typeof value === "string" ? value : "";
+  if (!next.startsWith("/") || next.startsWith("//") || next.includes("\\")) return fallback;
+  const resolved = new URL(next, "http://same.invalid");
+  return resolved.origin === "http://same.invalid" ? `${resolved.pathname}${resolved.search}` : fallback;
+}
+
 async function startSession(sessionSecret: string, expiresAt: Date) {
   (await cookies()).set(SESSION_COOKIE, sessionSecret, {
     httpOnly: true,
@@ -40,8 +48,7 @@ export async function signUpAction(_: FormState, formData: FormData): Promise<Fo
     if (error instanceof AccountError) return { ok: false, message: error.message };
     throw error;
   }
-  const next = String(formData.get("next") ?? "");
-  redirect(next.startsWith("/") && !next.startsWith("//") ? next : "/account");
+  redirect(safeNext(formData.get("next"), "/account"));
 }
 
 export async function signInAction(_: FormState, formData: FormData): Promise<FormState> {
@@ -54,8 +61,7 @@ export async function signInAction(_: FormState, formData: FormData): Promise<Fo
     if (error instanceof AccountError) return { ok: false, message: error.message };
     throw error;
   }
-  const next = String(formData.get("next") ?? "");
-  redirect(next.startsWith("/") && !next.startsWith("//") ? next : "/flights");
+  redirect(safeNext(formData.get("next"), "/flights"));
 }
 
 export async function signOutAction(): Promise<void> {

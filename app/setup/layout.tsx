@@ -1,6 +1,5 @@
 import type { ReactNode } from "react";
 import Link from "next/link";
-import { getViewer } from "@/app/_lib/viewer";
 import "./setup.css";
 
 const SECTIONS = [
@@ -13,18 +12,7 @@ const SECTIONS = [
   { href: "/setup/reprocess?all=1", label: "Re-analysis" },
 ];
 
-export default async function SetupLayout({ children }: { children: ReactNode }) {
-  const viewer = await getViewer();
-  if (viewer.kind === "anonymous") {
-    return (
-      <>
-        <h1>Setup</h1>
-        <p className="notice notice-warn" role="status">
-          Setup is for the program&apos;s members. <Link href="/account?next=/setup">Sign in</Link> first.
-        </p>
-      </>
-    );
-  }
+export default function SetupLayout({ children }: { children: ReactNode }) {
   return (
     <>
       <nav aria-label="Setup sections" className="setup-nav">

@@ -5,10 +5,13 @@ import { getProgramSettings, listSetupSchools } from "@/lib/query/setup-pages";
 import { getViewer } from "@/app/_lib/viewer";
 import { can } from "@/lib/auth/permissions";
 import { NewSchoolForm } from "./_components/new-school-form";
+import { membersOnly } from "@/app/setup/_lib/members-only";
 
 export const metadata: Metadata = { title: "Setup" };
 
 export default async function SetupPage() {
+  const gate = await membersOnly();
+  if (gate) return gate;
   await connection();
   const viewer = await getViewer();
   const [schools, settings] = await Promise.all([listSetupSchools(), getProgramSettings()]);

@@ -10,7 +10,7 @@ import {
 } from "@/lib/ingest";
 import { getViewer } from "@/app/_lib/viewer";
 import { can, type Action } from "@/lib/auth/permissions";
-import type { Viewer } from "@/lib/auth/visibility";
+import { readingViewer, type Viewer } from "@/lib/auth/visibility";
 import type { UploadChoices } from "@/lib/query/setup";
 
 export type ActionResult<T> =
@@ -78,6 +78,8 @@ const previewFormSchema = z.object({
  * listed) and always returns a suggested layout as well, for when none fits.
  */
 export async function previewLoggerFile(formData: FormData): Promise<ActionResult<PreviewResult>> {
+  const viewer = await getViewer();
+  if (viewer.kind !== "local" && readingViewer(viewer).kind !== "member") return failure("Sign in to preview files.", { code: "unauthenticated" });
   const file = formData.get("file");
   if (!(file instanceof File)) return failure("Choose a file to preview");
   const fields = previewFormSchema.safeParse({ layoutId: formData.get("layoutId"), launchAtUtc: formData.get("launchAtUtc") });

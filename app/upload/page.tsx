@@ -4,12 +4,24 @@ import { getUploadChoices } from "@/lib/query/setup";
 import { getEnv } from "@/lib/env";
 import { getViewer } from "@/app/_lib/viewer";
 import { UploadForm } from "./_components/upload-form";
+import Link from "next/link";
+import { readingViewer } from "@/lib/auth/visibility";
 
 export const metadata: Metadata = { title: "Upload" };
 
 export default async function UploadPage() {
   await connection();
-  await getViewer();
+  const viewer = await getViewer();
+  if (viewer.kind !== "local" && readingViewer(viewer).kind !== "member") {
+    return (
+      <>
+        <h1>Upload flights</h1>
+        <p className="notice notice-warn" role="status">
+          Uploading is for the program&apos;s members. <Link href="/account?next=/upload">Sign in</Link>, or ask a school admin for an invitation.
+        </p>
+      </>
+    );
+  }
   const choices = await getUploadChoices();
   return (
     <>

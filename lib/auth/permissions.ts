@@ -1,4 +1,4 @@
-import type { Role, Viewer } from "./visibility.ts";
+import { readingViewer, type Role, type Viewer } from "./visibility.ts";
 
 /** Everything a person can try to do; the matrix below is the one place that decides. */
 export type Action =
@@ -32,7 +32,10 @@ function roleIn(viewer: Extract<Viewer, { kind: "member" }>, schoolId: string | 
  * school; contributors upload and edit their school's flights and setup; readers read. Visitors who
  * are not signed in read public flights only. API tokens are further limited to their scopes.
  */
-export function can(viewer: Viewer, action: Action, target: Target): boolean {
+export function can(asked: Viewer, action: Action, target: Target): boolean {
+  if (asked.kind === "local") return true;
+  // Reading follows the visibility rule exactly (a person in no school reads like a visitor).
+  const viewer = action === "flight.read" ? readingViewer(asked) : asked;
   if (viewer.kind === "local") return true;
   const visible = (target.visibility === "public" || (viewer.kind === "member" && target.visibility === "program")) && !target.deleted;
   if (viewer.kind === "anonymous") return action === "flight.read" && target.visibility === "public" && !target.deleted;

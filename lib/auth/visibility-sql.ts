@@ -1,4 +1,4 @@
-import type { Viewer } from "./visibility.ts";
+import { readingViewer, type Viewer } from "./visibility.ts";
 
 /** A condition with "?" placeholders and the values they bind, in order. */
 export interface VisibilitySql {
@@ -11,7 +11,8 @@ export interface VisibilitySql {
  * as a condition on the Flight table under `alias`, with "?" placeholders. Keep the two in step;
  * a test compares them on a fixture for every kind of viewer.
  */
-export function visibilitySql(viewer: Viewer, alias = "f"): VisibilitySql {
+export function visibilitySql(asked: Viewer, alias = "f"): VisibilitySql {
+  const viewer = readingViewer(asked);
   if (!/^[A-Za-z_][A-Za-z0-9_]*$/.test(alias)) throw new Error(`invalid SQL alias ${alias}`);
   const notDeleted = `${alias}."deletedAt" IS NULL`;
   switch (viewer.kind) {

@@ -26,9 +26,22 @@ export type TokenScope = "read" | "upload";
 
 export const LOCAL_VIEWER: Viewer = { kind: "local" };
 
+/**
+ * Whom a viewer counts as when reading flights: a signed-in person who belongs to no school (and is
+ * not program admin) is not part of the program yet, and a token without the `read` scope reads
+ * nothing private; both see what a visitor sees.
+ */
+export function readingViewer(viewer: Viewer): Viewer {
+  if (viewer.kind !== "member") return viewer;
+  if (viewer.tokenScopes && !viewer.tokenScopes.includes("read")) return { kind: "anonymous" };
+  if (!viewer.isProgramAdmin && viewer.memberships.length === 0) return { kind: "anonymous" };
+  return viewer;
+}
+
 /** The one place that decides which flights a viewer may see; every read goes through it. */
-export function flightVisibilityWhere(viewer: Viewer): Prisma.FlightWhereInput {
+export function flightVisibilityWhere(asked: Viewer): Prisma.FlightWhereInput {
   const notDeleted: Prisma.FlightWhereInput = { deletedAt: null };
+  const viewer = readingViewer(asked);
   switch (viewer.kind) {
     case "local":
       return notDeleted;

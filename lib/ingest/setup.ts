@@ -67,6 +67,10 @@ export async function createPayload(db: DbLike, input: z.input<typeof payloadInp
 
 export async function createSensor(db: DbLike, input: z.input<typeof sensorInputSchema>) {
   const { payloadId, mountedFromUtc, mountedToUtc, ...data } = sensorInputSchema.parse(input);
+  if (payloadId) {
+    const payload = await db.payload.findUnique({ where: { id: payloadId }, select: { schoolId: true } });
+    if (payload?.schoolId !== data.schoolId) throw new z.ZodError([{ code: "custom", path: ["payloadId"], message: "That payload does not belong to this school", input: payloadId }]);
+  }
   const sensor = await db.sensor.create({ data });
   if (payloadId) {
     await db.sensorMount.create({ data: { sensorId: sensor.id, payloadId, fromUtc: mountedFromUtc ?? new Date(0), toUtc: mountedToUtc ?? null } });

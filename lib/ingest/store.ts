@@ -95,13 +95,17 @@ export async function ingestFlightFile(db: Db, request: IngestRequest, options: 
   const existing = await db.rawFile.findUnique({ where: { schoolId_sha256: { schoolId: meta.schoolId, sha256 } }, include: { flight: { select: { id: true } } } });
   if (existing) throw duplicateFailure(fileName, existing.flight?.id ?? null);
 
-  const [site, layoutRow] = await Promise.all([
+  const [site, layoutRow, sensorRow, payloadRow] = await Promise.all([
     db.site.findUnique({ where: { id: meta.siteId } }),
     db.loggerLayout.findUnique({ where: { id: meta.layoutId } }),
+    meta.sensorId ? db.sensor.findUnique({ where: { id: meta.sensorId }, select: { schoolId: true } }) : null,
+    meta.payloadId ? db.payload.findUnique({ where: { id: meta.payloadId }, select: { schoolId: true } }) : null,
   ]);
   const refIssues: IngestIssue[] = [];
   if (!site || site.schoolId !== meta.schoolId) refIssues.push(fileIssue(fileName, "unknown-site", `Site ${meta.siteId} does not exist for this school`));
   if (!layoutRow || layoutRow.schoolId !== meta.schoolId) refIssues.push(fileIssue(fileName, "unknown-layout", `Logger layout ${meta.layoutId} does not exist for this school`));
+  if (meta.sensorId && sensorRow?.schoolId !== meta.schoolId) refIssues.push(fileIssue(fileName, "unknown-sensor", `Sensor ${meta.sensorId} does not exist for this school`));
+  if (meta.payloadId && payloadRow?.schoolId !== meta.schoolId) refIssues.push(fileIssue(fileName, "unknown-payload", `Payload ${meta.payloadId} does not exist for this school`));
   if (refIssues.length || !site || !layoutRow) throw new IngestFailure("unknown-reference", refIssues);
   const layout = parseStoredLayout(layoutRow.spec, fileName);
 
@@ -211,6 +215,7 @@ async function chooseCalibration(
   if (args.calibrationId) {
     const row = await db.calibration.findUnique({ where: { id: args.calibrationId }, include: { sensor: { select: { schoolId: true } } } });
     if (!row || row.sensor.schoolId !== args.schoolId) throw new IngestFailure("unknown-calibration", [fileIssue(fileName, "unknown-calibration", `Calibration ${args.calibrationId} does not exist for this school`)]);
+    if (args.sensorId && row.sensorId !== args.sensorId) throw new IngestFailure("unknown-calibration", [fileIssue(fileName, "unknown-calibration", `Calibration ${args.calibrationId} belongs to another sensor than ${args.sensorId}`)]);
     return { id: row.id, spec: parseStoredCalibration(row.spec, fileName), byTime: false };
   }
   if (args.sensorId) {

@@ -4,7 +4,7 @@ import { can, refusalStatus, type Action } from "../../lib/auth/permissions.ts";
 import { resolveViewer } from "../../lib/auth/resolve-viewer.ts";
 import { flightVisibilityWhere, type Role, type Viewer } from "../../lib/auth/visibility.ts";
 import { deleteFlight, editFlight, restoreFlight } from "../../lib/ingest/flight-admin.ts";
-import { ingestFlightFile } from "../../lib/ingest/index.ts";
+import { createSensor, ingestFlightFile } from "../../lib/ingest/index.ts";
 import { PermissionError } from "../../lib/auth/permissions.ts";
 import { makeFlightFile, setUpSchool } from "../support/flight-files.ts";
 import { createTestDatabase, testEngines, type TestDatabase } from "../support/test-databases.ts";
@@ -150,6 +150,28 @@ describe.each(testEngines())("accounts, tokens and visibility on %s", (engine) =
     expect((await database.db.apiToken.findUniqueOrThrow({ where: { id } })).lastUsedAt).not.toBeNull();
     await revokeApiToken(database.db, id, alice.id);
     expect(await resolveViewer(database.db, { authorization: `Bearer ${token}` })).toEqual({ viewer: null, error: "invalid-token" });
+  });
+
+  test("a person in no school reads like a visitor; an upload-only token reads only public flights", async () => {
+    const loner = await createUser(database.db, { email: "loner@example.org", password, displayName: "Loner" });
+    const session = await signIn(database.db, { email: "loner@example.org", password }, "127.0.0.9");
+    const lonerViewer = (await viewerFromSession(database.db, session.sessionSecret))!;
+    expect(await database.db.flight.count({ where: { AND: [{ id: programFlightB }, flightVisibilityWhere(lonerViewer)] } })).toBe(0);
+    const alice = await database.db.user.findUniqueOrThrow({ where: { email: "alice@example.org" } });
+    const { token } = await createApiToken(database.db, { userId: alice.id, schoolId: a.school.id, name: "upload only", scopes: ["upload"] });
+    const uploader = (await resolveViewer(database.db, { authorization: `Bearer ${token}` })).viewer!;
+    expect(await database.db.flight.count({ where: { AND: [{ id: programFlightB }, flightVisibilityWhere(uploader)] } })).toBe(0);
+    expect(can(uploader, "flight.upload", { schoolId: a.school.id })).toBe(true);
+    expect(loner.isProgramAdmin).toBe(false);
+  });
+
+  test("an upload cannot borrow another school's sensor or payload", async () => {
+    const meta = { schoolId: a.school.id, siteId: a.site.id, layoutId: a.layout.id, launchAtUtc: "2024-07-12T06:01:00Z" };
+    const file = { name: "borrow.csv", bytes: makeFlightFile({ seed: 33 }).bytes };
+    await expect(ingestFlightFile(database.db, { file, metadata: { ...meta, sensorId: b.sensor.id } })).rejects.toMatchObject({ code: "unknown-reference" });
+    await expect(ingestFlightFile(database.db, { file, metadata: { ...meta, sensorId: a.sensor.id, payloadId: b.payload.id } })).rejects.toMatchObject({ code: "unknown-reference" });
+    await expect(ingestFlightFile(database.db, { file, metadata: { ...meta, sensorId: b.sensor.id, calibrationId: a.calibration.id } })).rejects.toMatchObject({ code: "unknown-reference" });
+    await expect(createSensor(database.db, { schoolId: a.school.id, serial: "X-9", kind: "test", payloadId: b.payload.id })).rejects.toThrow(/does not belong/);
   });
 
   test("a program admin's token acts for its one school only", async () => {

@@ -5,10 +5,13 @@ import { listSetupLayouts, listSetupSchools } from "@/lib/query/setup-pages";
 import { getViewer } from "@/app/_lib/viewer";
 import { schoolFilter, type SearchParams } from "../_lib/search-params";
 import { SchoolFilterLinks } from "../_lib/school-filter-links";
+import { membersOnly } from "@/app/setup/_lib/members-only";
 
 export const metadata: Metadata = { title: "Logger layouts · Setup" };
 
 export default async function SetupLayoutsPage({ searchParams }: { searchParams: SearchParams }) {
+  const gate = await membersOnly();
+  if (gate) return gate;
   await connection();
   await getViewer();
   const school = await schoolFilter(searchParams);

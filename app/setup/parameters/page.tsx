@@ -3,10 +3,13 @@ import { connection } from "next/server";
 import { getProgramSettings } from "@/lib/query/setup-pages";
 import { ParametersForm } from "@/app/_components/setup/parameters-form";
 import { getViewer } from "@/app/_lib/viewer";
+import { membersOnly } from "@/app/setup/_lib/members-only";
 
 export const metadata: Metadata = { title: "Analysis parameters · Setup" };
 
 export default async function ParametersPage() {
+  const gate = await membersOnly();
+  if (gate) return gate;
   await connection();
   await getViewer();
   const settings = await getProgramSettings();

@@ -7,6 +7,7 @@ import { listFlightsForReprocess } from "@/lib/query/setup-pages";
 import { ReprocessPanel } from "@/app/_components/setup/reprocess-panel";
 import { getViewer } from "@/app/_lib/viewer";
 import { pickId, type SearchParams } from "../_lib/search-params";
+import { membersOnly } from "@/app/setup/_lib/members-only";
 
 export const metadata: Metadata = { title: "Re-analysis · Setup" };
 
@@ -22,6 +23,8 @@ function selectionOf(params: Awaited<SearchParams>): { selection: ReprocessSelec
 }
 
 export default async function ReprocessPage({ searchParams }: { searchParams: SearchParams }) {
+  const gate = await membersOnly();
+  if (gate) return gate;
   await connection();
   const viewer = await getViewer();
   const params = await searchParams;

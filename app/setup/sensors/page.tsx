@@ -6,12 +6,15 @@ import { SensorForm } from "@/app/_components/setup/sensor-form";
 import { getViewer } from "@/app/_lib/viewer";
 import { schoolFilter, type SearchParams } from "../_lib/search-params";
 import { SchoolFilterLinks } from "../_lib/school-filter-links";
+import { membersOnly } from "@/app/setup/_lib/members-only";
 
 export const metadata: Metadata = { title: "Sensors · Setup" };
 
 const day = (iso: string | null) => (iso ? iso.slice(0, 10) : "open");
 
 export default async function SetupSensorsPage({ searchParams }: { searchParams: SearchParams }) {
+  const gate = await membersOnly();
+  if (gate) return gate;
   await connection();
   await getViewer();
   const school = await schoolFilter(searchParams);

@@ -6,10 +6,13 @@ import { SiteForm } from "@/app/_components/setup/site-form";
 import { getViewer } from "@/app/_lib/viewer";
 import { schoolFilter, type SearchParams } from "../_lib/search-params";
 import { SchoolFilterLinks } from "../_lib/school-filter-links";
+import { membersOnly } from "@/app/setup/_lib/members-only";
 
 export const metadata: Metadata = { title: "Sites · Setup" };
 
 export default async function SetupSitesPage({ searchParams }: { searchParams: SearchParams }) {
+  const gate = await membersOnly();
+  if (gate) return gate;
   await connection();
   await getViewer();
   const school = await schoolFilter(searchParams);

@@ -6,10 +6,13 @@ import { temperatureCalibrationSchema } from "@/lib/ingest/schemas";
 import { getSetupCalibration } from "@/lib/query/setup-pages";
 import { CalibrationForm } from "@/app/_components/setup/calibration-form";
 import { getViewer } from "@/app/_lib/viewer";
+import { membersOnly } from "@/app/setup/_lib/members-only";
 
 export const metadata: Metadata = { title: "Calibration · Setup" };
 
 export default async function CalibrationPage({ params }: { params: Promise<{ id: string }> }) {
+  const gate = await membersOnly();
+  if (gate) return gate;
   await connection();
   await getViewer();
   const { id } = await params;

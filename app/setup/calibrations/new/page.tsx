@@ -8,10 +8,13 @@ import { getSetupSensor } from "@/lib/query/setup-pages";
 import { CalibrationForm } from "@/app/_components/setup/calibration-form";
 import { getViewer } from "@/app/_lib/viewer";
 import { pickId, type SearchParams } from "../../_lib/search-params";
+import { membersOnly } from "@/app/setup/_lib/members-only";
 
 export const metadata: Metadata = { title: "New calibration · Setup" };
 
 export default async function NewCalibrationPage({ searchParams }: { searchParams: SearchParams }) {
+  const gate = await membersOnly();
+  if (gate) return gate;
   await connection();
   await getViewer();
   const sensorId = pickId((await searchParams).sensor);

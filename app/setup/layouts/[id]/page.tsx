@@ -6,10 +6,13 @@ import { loggerLayoutSpecSchema } from "@/lib/ingest/layout";
 import { getSetupLayout, listSetupSchools } from "@/lib/query/setup-pages";
 import { LayoutForm } from "@/app/_components/setup/layout-form";
 import { getViewer } from "@/app/_lib/viewer";
+import { membersOnly } from "@/app/setup/_lib/members-only";
 
 export const metadata: Metadata = { title: "Logger layout · Setup" };
 
 export default async function LayoutPage({ params }: { params: Promise<{ id: string }> }) {
+  const gate = await membersOnly();
+  if (gate) return gate;
   await connection();
   await getViewer();
   const { id } = await params;

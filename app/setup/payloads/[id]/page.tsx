@@ -5,10 +5,13 @@ import { connection } from "next/server";
 import { getSetupPayload, listSetupSchools } from "@/lib/query/setup-pages";
 import { PayloadForm } from "@/app/_components/setup/payload-form";
 import { getViewer } from "@/app/_lib/viewer";
+import { membersOnly } from "@/app/setup/_lib/members-only";
 
 export const metadata: Metadata = { title: "Payload · Setup" };
 
 export default async function SetupPayloadPage({ params }: { params: Promise<{ id: string }> }) {
+  const gate = await membersOnly();
+  if (gate) return gate;
   await connection();
   await getViewer();
   const { id } = await params;

@@ -7,12 +7,15 @@ import { MountForm, SensorForm } from "@/app/_components/setup/sensor-form";
 import { describeCalibration } from "@/app/_lib/format";
 import { getViewer } from "@/app/_lib/viewer";
 import type { SearchParams } from "../../_lib/search-params";
+import { membersOnly } from "@/app/setup/_lib/members-only";
 
 export const metadata: Metadata = { title: "Sensor · Setup" };
 
 const day = (iso: string | null) => (iso ? iso.slice(0, 10) : "open end");
 
 export default async function SetupSensorPage({ params, searchParams }: { params: Promise<{ id: string }>; searchParams: SearchParams }) {
+  const gate = await membersOnly();
+  if (gate) return gate;
   await connection();
   await getViewer();
   const { id } = await params;

@@ -5,10 +5,13 @@ import { connection } from "next/server";
 import { getSetupSite, listSetupSchools } from "@/lib/query/setup-pages";
 import { SiteForm } from "@/app/_components/setup/site-form";
 import { getViewer } from "@/app/_lib/viewer";
+import { membersOnly } from "@/app/setup/_lib/members-only";
 
 export const metadata: Metadata = { title: "Site · Setup" };
 
 export default async function SetupSitePage({ params }: { params: Promise<{ id: string }> }) {
+  const gate = await membersOnly();
+  if (gate) return gate;
   await connection();
   await getViewer();
   const { id } = await params;

@@ -1,6 +1,7 @@
 import "server-only";
 import type { z } from "zod";
 import { can, refusalStatus, type Action } from "@/lib/auth/permissions";
+import { readingViewer } from "@/lib/auth/visibility";
 import { OverlappingCalibrationError } from "@/lib/ingest";
 import { CalibrationFitError, SetupConflictError } from "@/lib/ingest/setup-more";
 import { getViewer } from "@/app/_lib/viewer";
@@ -24,6 +25,15 @@ export async function refuseUnlessAllowed(schoolId: string | null, action: Actio
   if (can(viewer, action, { schoolId })) return null;
   const status = refusalStatus(viewer);
   return jsonError(status, status === 401 ? "unauthenticated" : "forbidden", status === 401 ? "Sign in or send an API token first" : "You may not change this setup");
+}
+
+/** Setup belongs to the program's members: visitors (and people in no school) get 401/403 before any read. */
+export async function refuseVisitors(): Promise<Response | null> {
+  const viewer = await getViewer();
+  if (viewer.kind === "local" || (viewer.kind === "member" && readingViewer(viewer).kind === "member")) return null;
+  return viewer.kind === "anonymous"
+    ? jsonError(401, "unauthenticated", "Sign in or send an API token first")
+    : jsonError(403, "forbidden", "Setup is visible to the program's members");
 }
 
 /** Known setup failures in the one error shape: conflicts 409, unfit data 422, missing rows 404. */

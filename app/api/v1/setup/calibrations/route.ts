@@ -2,12 +2,14 @@ import { calibrationInputSchema, createCalibration, selectFlights } from "@/lib/
 import { getDb } from "@/lib/db";
 import { getSetupSensor } from "@/lib/query/setup-pages";
 import { jsonError, jsonOk, withErrors } from "../../_lib/respond";
-import { idParam, readJson, refuseUnlessAllowed, setupFailure } from "../_lib/setup-api";
+import { refuseVisitors, idParam, readJson, refuseUnlessAllowed, setupFailure } from "../_lib/setup-api";
 
 export const runtime = "nodejs";
 
 /** GET /api/v1/setup/calibrations?sensor=ID: the sensor's calibrations, oldest first. */
 export const GET = withErrors(async (request: Request) => {
+  const refused = await refuseVisitors();
+  if (refused) return refused;
   const sensorId = idParam(request, "sensor");
   if (!sensorId) return jsonError(400, "invalid-request", "sensor: give ?sensor=ID");
   const sensor = await getSetupSensor(sensorId);

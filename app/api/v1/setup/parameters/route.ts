@@ -4,12 +4,12 @@ import { getDb } from "@/lib/db";
 import { setProgramParameters } from "@/lib/ingest/setup-more";
 import { getProgramSettings } from "@/lib/query/setup-pages";
 import { jsonOk, withErrors } from "../../_lib/respond";
-import { readJson, refuseUnlessAllowed } from "../_lib/setup-api";
+import { refuseVisitors, readJson, refuseUnlessAllowed } from "../_lib/setup-api";
 
 export const runtime = "nodejs";
 
 /** GET /api/v1/setup/parameters: the program's analysis parameters and the built-in defaults. */
-export const GET = withErrors(async () => jsonOk(await getProgramSettings()));
+export const GET = withErrors(async () => (await refuseVisitors()) ?? jsonOk(await getProgramSettings()));
 
 /** PUT /api/v1/setup/parameters {binSizeM, tropopauseSearchFloorM, lagCorrection, smoothingWindowS, …}: recorded with every later run. */
 export const PUT = withErrors(async (request: Request) => {

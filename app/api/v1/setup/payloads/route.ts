@@ -2,12 +2,14 @@ import { createPayload, payloadInputSchema } from "@/lib/ingest";
 import { getDb } from "@/lib/db";
 import { listSetupPayloads } from "@/lib/query/setup-pages";
 import { jsonOk, withErrors } from "../../_lib/respond";
-import { idParam, readJson, refuseUnlessAllowed, setupFailure } from "../_lib/setup-api";
+import { refuseVisitors, idParam, readJson, refuseUnlessAllowed, setupFailure } from "../_lib/setup-api";
 
 export const runtime = "nodejs";
 
 /** GET /api/v1/setup/payloads[?school=ID] */
 export const GET = withErrors(async (request: Request) => {
+  const refused = await refuseVisitors();
+  if (refused) return refused;
   const school = idParam(request, "school");
   const payloads = await listSetupPayloads();
   return jsonOk({ payloads: school ? payloads.filter((p) => p.schoolId === school) : payloads });

@@ -6,7 +6,7 @@ import { reprocessFlight, selectFlights, type ReprocessOutcome, type ReprocessSe
 import { listFlightsForReprocess } from "@/lib/query/setup-pages";
 import { getViewer } from "@/app/_lib/viewer";
 import { jsonError, jsonOk, validationError, withErrors } from "../../_lib/respond";
-import { readJson } from "../_lib/setup-api";
+import { refuseVisitors, readJson } from "../_lib/setup-api";
 
 export const runtime = "nodejs";
 
@@ -32,6 +32,8 @@ function selectionFromQuery(params: URLSearchParams): ReprocessSelection | null 
 
 /** GET /api/v1/setup/reprocess?calibration=ID | layout=ID | flight=ID… | all=1: the flights such a re-analysis covers. */
 export const GET = withErrors(async (request: Request) => {
+  const refused = await refuseVisitors();
+  if (refused) return refused;
   const raw = selectionFromQuery(new URL(request.url).searchParams);
   const parsed = selectionSchema.safeParse(raw);
   if (!raw || !parsed.success) return jsonError(400, "invalid-request", "Give one of ?calibration=ID, ?layout=ID, ?flight=ID (repeatable) or ?all=1");

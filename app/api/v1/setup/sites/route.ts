@@ -2,12 +2,14 @@ import { createSite, siteInputSchema } from "@/lib/ingest";
 import { getDb } from "@/lib/db";
 import { listSetupSites } from "@/lib/query/setup-pages";
 import { jsonOk, withErrors } from "../../_lib/respond";
-import { idParam, readJson, refuseUnlessAllowed, setupFailure } from "../_lib/setup-api";
+import { refuseVisitors, idParam, readJson, refuseUnlessAllowed, setupFailure } from "../_lib/setup-api";
 
 export const runtime = "nodejs";
 
 /** GET /api/v1/setup/sites[?school=ID] */
 export const GET = withErrors(async (request: Request) => {
+  const refused = await refuseVisitors();
+  if (refused) return refused;
   const school = idParam(request, "school");
   const sites = await listSetupSites();
   return jsonOk({ sites: school ? sites.filter((s) => s.schoolId === school) : sites });

@@ -2,13 +2,15 @@ import { calibrationInputSchema, selectFlights, updateCalibration } from "@/lib/
 import { getDb } from "@/lib/db";
 import { getSetupCalibration } from "@/lib/query/setup-pages";
 import { jsonError, jsonOk, notFoundError, withErrors } from "../../../_lib/respond";
-import { readJson, refuseUnlessAllowed, setupFailure } from "../../_lib/setup-api";
+import { refuseVisitors, readJson, refuseUnlessAllowed, setupFailure } from "../../_lib/setup-api";
 
 export const runtime = "nodejs";
 
 type Context = { params: Promise<{ id: string }> };
 
 export const GET = withErrors(async (_request: Request, { params }: Context) => {
+  const refused = await refuseVisitors();
+  if (refused) return refused;
   const calibration = await getSetupCalibration((await params).id);
   return calibration ? jsonOk({ calibration }) : notFoundError("Calibration");
 });

@@ -3,13 +3,15 @@ import { getDb } from "@/lib/db";
 import { layoutUpdateSchema, updateLayout } from "@/lib/ingest/setup-more";
 import { getSetupLayout } from "@/lib/query/setup-pages";
 import { jsonOk, notFoundError, withErrors } from "../../../_lib/respond";
-import { readJson, refuseUnlessAllowed, setupFailure } from "../../_lib/setup-api";
+import { refuseVisitors, readJson, refuseUnlessAllowed, setupFailure } from "../../_lib/setup-api";
 
 export const runtime = "nodejs";
 
 type Context = { params: Promise<{ id: string }> };
 
 export const GET = withErrors(async (_request: Request, { params }: Context) => {
+  const refused = await refuseVisitors();
+  if (refused) return refused;
   const layout = await getSetupLayout((await params).id);
   return layout ? jsonOk({ layout }) : notFoundError("Logger layout");
 });

@@ -2,7 +2,7 @@ import { getDb } from "@/lib/db";
 import { payloadUpdateSchema, updatePayload } from "@/lib/ingest/setup-more";
 import { getSetupPayload } from "@/lib/query/setup-pages";
 import { jsonOk, notFoundError, withErrors } from "../../../_lib/respond";
-import { readJson, refuseUnlessAllowed, setupFailure } from "../../_lib/setup-api";
+import { refuseVisitors, readJson, refuseUnlessAllowed, setupFailure } from "../../_lib/setup-api";
 
 export const runtime = "nodejs";
 
@@ -10,6 +10,8 @@ type Context = { params: Promise<{ id: string }> };
 
 /** GET /api/v1/setup/payloads/ID: the payload with the sensors it carried over time. */
 export const GET = withErrors(async (_request: Request, { params }: Context) => {
+  const refused = await refuseVisitors();
+  if (refused) return refused;
   const payload = await getSetupPayload((await params).id);
   return payload ? jsonOk({ payload }) : notFoundError("Payload");
 });

@@ -2,7 +2,7 @@ import { getDb } from "@/lib/db";
 import { sensorUpdateSchema, updateSensor } from "@/lib/ingest/setup-more";
 import { getSetupSensor } from "@/lib/query/setup-pages";
 import { jsonOk, notFoundError, withErrors } from "../../../_lib/respond";
-import { readJson, refuseUnlessAllowed, setupFailure } from "../../_lib/setup-api";
+import { refuseVisitors, readJson, refuseUnlessAllowed, setupFailure } from "../../_lib/setup-api";
 
 export const runtime = "nodejs";
 
@@ -10,6 +10,8 @@ type Context = { params: Promise<{ id: string }> };
 
 /** GET /api/v1/setup/sensors/ID: the sensor with its payload mounts and calibrations. */
 export const GET = withErrors(async (_request: Request, { params }: Context) => {
+  const refused = await refuseVisitors();
+  if (refused) return refused;
   const sensor = await getSetupSensor((await params).id);
   return sensor ? jsonOk({ sensor }) : notFoundError("Sensor");
 });

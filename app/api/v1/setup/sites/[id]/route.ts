@@ -2,13 +2,15 @@ import { getDb } from "@/lib/db";
 import { siteUpdateSchema, updateSite } from "@/lib/ingest/setup-more";
 import { getSetupSite } from "@/lib/query/setup-pages";
 import { jsonOk, notFoundError, withErrors } from "../../../_lib/respond";
-import { readJson, refuseUnlessAllowed, setupFailure } from "../../_lib/setup-api";
+import { refuseVisitors, readJson, refuseUnlessAllowed, setupFailure } from "../../_lib/setup-api";
 
 export const runtime = "nodejs";
 
 type Context = { params: Promise<{ id: string }> };
 
 export const GET = withErrors(async (_request: Request, { params }: Context) => {
+  const refused = await refuseVisitors();
+  if (refused) return refused;
   const site = await getSetupSite((await params).id);
   return site ? jsonOk({ site }) : notFoundError("Site");
 });
