@@ -30,3 +30,9 @@ export async function getClientAddress(): Promise<string> {
   const headerStore = await headers();
   return headerStore.get("x-forwarded-for")?.split(",")[0]?.trim() || headerStore.get("x-real-ip") || "direct";
 }
+
+/** Who to credit in the audit log for what this request changes. */
+export async function currentActor(fallbackLabel: string): Promise<{ userId: string | null; label: string }> {
+  const viewer = await getViewer();
+  return viewer.kind === "member" ? { userId: viewer.userId, label: viewer.email ?? viewer.userId } : { userId: null, label: fallbackLabel };
+}

@@ -15,11 +15,10 @@ import {
   sensorMountInputSchema, sensorUpdateSchema, setProgramParameters, SetupConflictError, siteUpdateSchema, updateLayout, updatePayload,
   updateSensor, updateSite, type CalibrationFitResult, type LayoutPreview,
 } from "@/lib/ingest/setup-more";
-import { getViewer } from "@/app/_lib/viewer";
+import { currentActor, getViewer } from "@/app/_lib/viewer";
 import { actionFailure, actionOk, zodFailure, type ActionResult } from "./_lib/action-result";
 import { mayEditProgram, mayEditSchool, NOT_ALLOWED } from "./_lib/permissions";
 
-const SETUP_ACTOR = { userId: null, label: "web setup" };
 
 function refreshSetup() {
   revalidatePath("/setup", "layout");
@@ -56,7 +55,7 @@ export async function saveSite(input: z.input<typeof siteFormSchema>): Promise<A
       if (!existing) return actionFailure("That site no longer exists");
       if (!(await mayEdit(existing.schoolId))) return actionFailure(NOT_ALLOWED);
       const { schoolId: _school, ...changes } = data;
-      await updateSite(db, id, changes, SETUP_ACTOR);
+      await updateSite(db, id, changes, await currentActor("web setup"));
       refreshSetup();
       return actionOk({ id });
     }
@@ -83,7 +82,7 @@ export async function savePayload(input: z.input<typeof payloadFormSchema>): Pro
       const existing = await db.payload.findUnique({ where: { id } });
       if (!existing) return actionFailure("That payload no longer exists");
       if (!(await mayEdit(existing.schoolId))) return actionFailure(NOT_ALLOWED);
-      await updatePayload(db, id, data, SETUP_ACTOR);
+      await updatePayload(db, id, data, await currentActor("web setup"));
       refreshSetup();
       return actionOk({ id });
     }
@@ -110,7 +109,7 @@ export async function saveSensor(input: z.input<typeof sensorFormSchema>): Promi
       const existing = await db.sensor.findUnique({ where: { id } });
       if (!existing) return actionFailure("That sensor no longer exists");
       if (!(await mayEdit(existing.schoolId))) return actionFailure(NOT_ALLOWED);
-      await updateSensor(db, id, data, SETUP_ACTOR);
+      await updateSensor(db, id, data, await currentActor("web setup"));
       refreshSetup();
       return actionOk({ id });
     }
@@ -132,7 +131,8 @@ export async function addSensorMount(input: z.input<typeof sensorMountInputSchem
   if (!sensor) return actionFailure("That sensor no longer exists");
   if (!(await mayEdit(sensor.schoolId))) return actionFailure(NOT_ALLOWED);
   try {
-    const mount = await db.$transaction((tx) => mountSensor(tx, parsed.data, SETUP_ACTOR));
+    const actor = await currentActor("web setup");
+    const mount = await db.$transaction((tx) => mountSensor(tx, parsed.data, actor));
     refreshSetup();
     return actionOk({ id: mount.id });
   } catch (error) {
@@ -165,6 +165,7 @@ export async function saveCalibration(input: { id?: string; calibration: unknown
   if (!sensor) return actionFailure("That sensor no longer exists", { sensorId: ["Choose a sensor"] });
   if (!(await mayEdit(sensor.schoolId))) return actionFailure(NOT_ALLOWED);
   const id = outer.data.id;
+  const actor = await currentActor("web setup");
   try {
     if (id) {
       const existing = await db.calibration.findUnique({ where: { id } });
@@ -173,7 +174,7 @@ export async function saveCalibration(input: { id?: string; calibration: unknown
     const saved = await db.$transaction(async (tx) => {
       const row = id ? await updateCalibration(tx, id, parsed.data) : await createCalibration(tx, parsed.data);
       await tx.auditEvent.create({
-        data: { actorUserId: null, actorLabel: SETUP_ACTOR.label, schoolId: sensor.schoolId, action: id ? "calibration.update" : "calibration.create", entityType: "calibration", entityId: row.id, details: { method: row.method } },
+        data: { actorUserId: actor.userId, actorLabel: actor.label, schoolId: sensor.schoolId, action: id ? "calibration.update" : "calibration.create", entityType: "calibration", entityId: row.id, details: { method: row.method } },
       });
       return row;
     });
@@ -210,7 +211,7 @@ export async function saveLayout(input: { id?: string; schoolId: string; spec: u
       const existing = await db.loggerLayout.findUnique({ where: { id } });
       if (!existing) return actionFailure("That layout no longer exists");
       if (!(await mayEdit(existing.schoolId))) return actionFailure(NOT_ALLOWED);
-      await updateLayout(db, id, { spec }, SETUP_ACTOR);
+      await updateLayout(db, id, { spec }, await currentActor("web setup"));
       refreshSetup();
       return actionOk({ id, affectedFlightCount: (await selectFlights(db, { layoutId: id })).length });
     }
@@ -258,7 +259,7 @@ export async function saveProgramParameters(input: unknown): Promise<ActionResul
   const parsed = analysisParametersSchema.safeParse(input);
   if (!parsed.success) return zodFailure(parsed.error, "Some parameters are out of range");
   const db = getDb();
-  await setProgramParameters(db, parsed.data, SETUP_ACTOR);
+  await setProgramParameters(db, parsed.data, await currentActor("web setup"));
   refreshSetup();
   return actionOk({ affectedFlightCount: (await selectFlights(db, { all: true })).length });
 }
@@ -278,7 +279,7 @@ export async function reprocessOneFlight(input: z.input<typeof reprocessInputSch
   const flight = await db.flight.findFirst({ where: { id: parsed.data.flightId, deletedAt: null }, select: { id: true, schoolId: true } });
   if (!flight) return actionFailure("That flight does not exist");
   if (!(await mayEdit(flight.schoolId))) return actionFailure("You may not re-analyse this school's flights");
-  const outcome = await reprocessFlight(db, flight.id, { reason: parsed.data.reason, force: parsed.data.force, actor: SETUP_ACTOR });
+  const outcome = await reprocessFlight(db, flight.id, { reason: parsed.data.reason, force: parsed.data.force, actor: await currentActor("web setup") });
   if (outcome.status === "reprocessed") {
     revalidatePath(`/flights/${flight.id}`);
     revalidatePath("/flights");

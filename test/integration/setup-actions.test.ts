@@ -10,7 +10,10 @@ import { createTestDatabase, type TestDatabase } from "../support/test-databases
 vi.mock("next/cache", () => ({ revalidatePath: vi.fn() }));
 // Outside a request there are no cookies: the test chooses who is asking.
 const asking = vi.hoisted(() => ({ viewer: { kind: "local" } as Viewer }));
-vi.mock("@/app/_lib/viewer", () => ({ getViewer: async () => asking.viewer }));
+vi.mock("@/app/_lib/viewer", () => ({
+  getViewer: async () => asking.viewer,
+  currentActor: async (label: string) => (asking.viewer.kind === "member" ? { userId: asking.viewer.userId, label: asking.viewer.email ?? asking.viewer.userId } : { userId: null, label }),
+}));
 
 const K0 = 273.15; // 0 °C in K, SI definition
 

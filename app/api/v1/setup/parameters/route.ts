@@ -5,6 +5,7 @@ import { setProgramParameters } from "@/lib/ingest/setup-more";
 import { getProgramSettings } from "@/lib/query/setup-pages";
 import { jsonOk, withErrors } from "../../_lib/respond";
 import { refuseVisitors, readJson, refuseUnlessAllowed } from "../_lib/setup-api";
+import { currentActor } from "@/app/_lib/viewer";
 
 export const runtime = "nodejs";
 
@@ -18,6 +19,6 @@ export const PUT = withErrors(async (request: Request) => {
   const body = await readJson(request, analysisParametersSchema);
   if ("response" in body) return body.response;
   const db = getDb();
-  const parameters = await setProgramParameters(db, body.data, { userId: null, label: "api" });
+  const parameters = await setProgramParameters(db, body.data, await currentActor("api"));
   return jsonOk({ parameters, affectedFlightIds: await selectFlights(db, { all: true }), reprocess: { all: true } });
 });

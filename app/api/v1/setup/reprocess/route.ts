@@ -7,6 +7,7 @@ import { listFlightsForReprocess } from "@/lib/query/setup-pages";
 import { getViewer } from "@/app/_lib/viewer";
 import { jsonError, jsonOk, validationError, withErrors } from "../../_lib/respond";
 import { refuseVisitors, readJson } from "../_lib/setup-api";
+import { currentActor } from "@/app/_lib/viewer";
 
 export const runtime = "nodejs";
 
@@ -75,7 +76,7 @@ export const POST = withErrors(async (request: Request) => {
         if (request.signal.aborted) { interrupted = true; break; }
         const allowed = can(viewer, "setup.edit", { schoolId: schools.get(flightId) ?? null });
         const outcome: ReprocessOutcome = allowed
-          ? await reprocessFlight(db, flightId, { reason: body.data.reason, force: body.data.force, actor: { userId: null, label: "api" } })
+          ? await reprocessFlight(db, flightId, { reason: body.data.reason, force: body.data.force, actor: await currentActor("api") })
           : { flightId, status: "failed", message: "You may not re-analyse this school's flights" };
         outcomes.push(outcome);
         send({ type: "progress", done: outcomes.length, total: ids.length, outcome });

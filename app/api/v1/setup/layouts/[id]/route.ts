@@ -4,6 +4,7 @@ import { layoutUpdateSchema, updateLayout } from "@/lib/ingest/setup-more";
 import { getSetupLayout } from "@/lib/query/setup-pages";
 import { jsonOk, notFoundError, withErrors } from "../../../_lib/respond";
 import { refuseVisitors, readJson, refuseUnlessAllowed, setupFailure } from "../../_lib/setup-api";
+import { currentActor } from "@/app/_lib/viewer";
 
 export const runtime = "nodejs";
 
@@ -26,7 +27,7 @@ export const PUT = withErrors(async (request: Request, { params }: Context) => {
   if ("response" in body) return body.response;
   const db = getDb();
   try {
-    const layout = await updateLayout(db, existing.id, body.data, { userId: null, label: "api" });
+    const layout = await updateLayout(db, existing.id, body.data, await currentActor("api"));
     return jsonOk({ layout, affectedFlightIds: await selectFlights(db, { layoutId: layout.id }), reprocess: { layoutId: layout.id } });
   } catch (error) {
     return setupFailure(error);

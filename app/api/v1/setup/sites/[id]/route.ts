@@ -3,6 +3,7 @@ import { siteUpdateSchema, updateSite } from "@/lib/ingest/setup-more";
 import { getSetupSite } from "@/lib/query/setup-pages";
 import { jsonOk, notFoundError, withErrors } from "../../../_lib/respond";
 import { refuseVisitors, readJson, refuseUnlessAllowed, setupFailure } from "../../_lib/setup-api";
+import { currentActor } from "@/app/_lib/viewer";
 
 export const runtime = "nodejs";
 
@@ -24,7 +25,7 @@ export const PUT = withErrors(async (request: Request, { params }: Context) => {
   const body = await readJson(request, siteUpdateSchema);
   if ("response" in body) return body.response;
   try {
-    return jsonOk({ site: await updateSite(getDb(), existing.id, body.data, { userId: null, label: "api" }) });
+    return jsonOk({ site: await updateSite(getDb(), existing.id, body.data, await currentActor("api")) });
   } catch (error) {
     return setupFailure(error);
   }

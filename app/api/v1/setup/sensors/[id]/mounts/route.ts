@@ -4,6 +4,7 @@ import { mountSensor, sensorMountInputSchema } from "@/lib/ingest/setup-more";
 import { getSetupSensor } from "@/lib/query/setup-pages";
 import { jsonOk, notFoundError, validationError, withErrors } from "../../../../_lib/respond";
 import { readJson, refuseUnlessAllowed, setupFailure } from "../../../_lib/setup-api";
+import { currentActor } from "@/app/_lib/viewer";
 
 export const runtime = "nodejs";
 
@@ -20,7 +21,8 @@ export const POST = withErrors(async (request: Request, { params }: Context) => 
   const parsed = sensorMountInputSchema.safeParse({ ...body.data, sensorId: sensor.id });
   if (!parsed.success) return validationError(parsed.error);
   try {
-    const mount = await getDb().$transaction((tx) => mountSensor(tx, parsed.data, { userId: null, label: "api" }));
+    const actor = await currentActor("api");
+    const mount = await getDb().$transaction((tx) => mountSensor(tx, parsed.data, actor));
     return jsonOk({ mount }, 201);
   } catch (error) {
     return setupFailure(error);
