@@ -21,7 +21,7 @@ case "$cmd" in
       as_pg "'$bin/initdb' -D '$dir' -A trust -U postgres >/dev/null"
     fi
     if ! as_pg "'$bin/pg_ctl' -D '$dir' status" >/dev/null 2>&1; then
-      as_pg "'$bin/pg_ctl' -D '$dir' -l '$dir/server.log' -w -t 60 -o \"-p $port -k '$dir' -c listen_addresses=127.0.0.1 -c fsync=off -c max_connections=200\" start" >/dev/null \
+      as_pg "'$bin/pg_ctl' -D '$dir' -l '$dir/server.log' -w -t 60 -o \"-p $port -k '$dir' -c listen_addresses=127.0.0.1 -c fsync=off -c autovacuum=off -c max_connections=200\" start" >/dev/null \
         || { echo "postgres.sh: PostgreSQL failed to start; log follows" >&2; cat "$dir/server.log" >&2; exit 1; }
     fi
     as_pg "'$bin/psql' -h 127.0.0.1 -p $port -U postgres -tAc \"SELECT 1 FROM pg_roles WHERE rolname='lapsebank'\"" | grep -q 1 \

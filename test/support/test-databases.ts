@@ -45,10 +45,26 @@ export async function createTestDatabase(engine: Engine): Promise<TestDatabase> 
     ...handle,
     drop: async () => {
       await handle.db.$disconnect();
+      // A background worker (autovacuum) may still sit in the database, and only a superuser may
+      // end it: retry a few times, then leave the database to the throw-away cluster.
       const client = new pg.Client({ connectionString: adminUrl });
       await client.connect();
-      await client.query(`DROP DATABASE IF EXISTS "${name}" WITH (FORCE)`);
-      await client.end();
+      try {
+        for (let attempt = 1; ; attempt++) {
+          try {
+            await client.query(`DROP DATABASE IF EXISTS "${name}" WITH (FORCE)`);
+            break;
+          } catch (error) {
+            if (attempt >= 5) {
+              console.warn(`test database ${name} left behind: ${(error as Error).message}`);
+              break;
+            }
+            await new Promise((resolve) => setTimeout(resolve, 300 * attempt));
+          }
+        }
+      } finally {
+        await client.end();
+      }
     },
   };
 }
