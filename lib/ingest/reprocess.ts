@@ -75,13 +75,13 @@ export async function reprocessFlight(db: Db, flightId: string, options: { reaso
   try {
     const flight = await db.flight.findUniqueOrThrow({
       where: { id: flightId },
-      include: { rawFile: true, layout: true, site: true, runs: { where: { isCurrent: true }, include: { summary: true } } },
+      include: { rawFile: true, layout: true, site: true, sensor: { select: { timeConstantS: true } }, runs: { where: { isCurrent: true }, include: { summary: true } } },
     });
     const previous = flight.runs[0] ?? null;
     const fileName = flight.rawFile.name;
     const layout = parseStoredLayout(flight.layout.spec, fileName);
     const calibration = await currentCalibrationFor(db, flight, previous, layout, fileName);
-    const parameters = await parametersForSensor(db, flight.sensorId);
+    const parameters = await parametersForSensor(db, flight.sensor);
     const sameInputs =
       previous !== null &&
       previous.analysisVersion === ANALYSIS_VERSION &&

@@ -49,11 +49,9 @@ export async function getProgramParameters(db: Db | DbTransaction): Promise<Anal
  * Program parameters for one flight: when lag correction is switched on, the flight's own sensor
  * time constant is used (the program value is the fallback for sensors without one).
  */
-export async function parametersForSensor(db: Db | DbTransaction, sensorId: string | null): Promise<AnalysisParameters> {
+export async function parametersForSensor(db: Db | DbTransaction, sensor: { timeConstantS: number } | null): Promise<AnalysisParameters> {
   const parameters = await getProgramParameters(db);
-  if (!parameters.lagCorrection.enabled || !sensorId) return parameters;
-  const sensor = await db.sensor.findUnique({ where: { id: sensorId }, select: { timeConstantS: true } });
-  if (!sensor || !(sensor.timeConstantS > 0)) return parameters;
+  if (!parameters.lagCorrection.enabled || !sensor || !(sensor.timeConstantS > 0)) return parameters;
   return { ...parameters, lagCorrection: { enabled: true, timeConstantS: sensor.timeConstantS } };
 }
 
@@ -98,7 +96,7 @@ export async function ingestFlightFile(db: Db, request: IngestRequest, options: 
   const [site, layoutRow, sensorRow, payloadRow] = await Promise.all([
     db.site.findUnique({ where: { id: meta.siteId } }),
     db.loggerLayout.findUnique({ where: { id: meta.layoutId } }),
-    meta.sensorId ? db.sensor.findUnique({ where: { id: meta.sensorId }, select: { schoolId: true } }) : null,
+    meta.sensorId ? db.sensor.findUnique({ where: { id: meta.sensorId }, select: { schoolId: true, timeConstantS: true } }) : null,
     meta.payloadId ? db.payload.findUnique({ where: { id: meta.payloadId }, select: { schoolId: true } }) : null,
   ]);
   const refIssues: IngestIssue[] = [];
@@ -110,7 +108,7 @@ export async function ingestFlightFile(db: Db, request: IngestRequest, options: 
   const layout = parseStoredLayout(layoutRow.spec, fileName);
 
   const calibrationChoice = await chooseCalibration(db, { ...meta, fileName, layout, schoolId: meta.schoolId });
-  const parameters = await parametersForSensor(db, meta.sensorId ?? null);
+  const parameters = await parametersForSensor(db, sensorRow);
   const prepared = await prepareAnalysis({
     fileName, bytes, layout, site, parameters, mode: meta.mode,
     calibration: calibrationChoice.spec,
@@ -219,8 +217,8 @@ async function chooseCalibration(
     return { id: row.id, spec: parseStoredCalibration(row.spec, fileName), byTime: false };
   }
   if (args.sensorId) {
-    const sensor = await db.sensor.findUnique({ where: { id: args.sensorId } });
-    if (!sensor || sensor.schoolId !== args.schoolId) throw new IngestFailure("unknown-sensor", [fileIssue(fileName, "unknown-sensor", `Sensor ${args.sensorId} does not exist for this school`)]);
+    // The sensor's school was checked with the other references before this is called.
+    const sensor = { id: args.sensorId };
     // Before parsing we only know the time the user gave, or nothing: take the calibration valid
     // then (or the latest), and re-check it once the launch time is read from the file.
     const at = args.launchAtUtc ?? new Date(8.64e15);
