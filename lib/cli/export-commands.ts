@@ -14,17 +14,7 @@ import { LOCAL_VIEWER } from "../auth/visibility.ts";
 import { createExport, ExportRequestError } from "../export/export.ts";
 import { backupArchive, restoreArchive, RestoreRefused } from "../export/backup.ts";
 
-export const EXPORT_HELP = `  export [options]             write a dataset (CSV table, JSON, or zip data package)
-      --source archive|flight|climatology   (default archive)
-      --format csv|json|package             (default package)
-      --table flights|runs|layers|levels|calibrations|raw-files|query-values   (CSV only; default flights)
-      --raw                                 include the raw logger files (package only)
-      --licence CC-BY-4.0|CC0-1.0|CC-BY-SA-4.0|ODC-By-1.0|ODbL-1.0   (default CC-BY-4.0)
-      --title TEXT  --flight ID (source flight)
-      --query "metric=tropopause-altitude&groupBy=season"   the Archive or Climatology page's parameters
-      --out FILE                            (default: a name like lapsebank-archive-20250101-120000.zip)
-  backup <file>                write the whole archive (every table and raw file) into one zip
-  restore <file>               load a backup into an EMPTY database (refuses otherwise)`;
+export { EXPORT_HELP } from "./export-help.ts";
 
 /** `export …`: returns the process exit code. */
 export async function runExport(args: string[]): Promise<number> {
@@ -44,6 +34,7 @@ export async function runExport(args: string[]): Promise<number> {
     if (value !== undefined) record[key] = value;
   }
   if (values.raw) record.raw = "yes";
+  const started = performance.now();
   let output;
   try {
     output = await createExport(getDbHandle(), LOCAL_VIEWER, record);
@@ -56,7 +47,8 @@ export async function runExport(args: string[]): Promise<number> {
   }
   const file = values.out ?? output.fileName;
   await pipeline(Readable.from(output.body), fs.createWriteStream(file));
-  console.log(`Wrote ${file} (${output.scope.flightIds.length} flight${output.scope.flightIds.length === 1 ? "" : "s"}, ${(fs.statSync(file).size / 1048576).toFixed(1)} MB)`);
+  const seconds = (performance.now() - started) / 1000;
+  console.log(`Wrote ${file} (${output.scope.flightIds.length} flight${output.scope.flightIds.length === 1 ? "" : "s"}, ${(fs.statSync(file).size / 1048576).toFixed(1)} MB) in ${seconds.toFixed(1)} s`);
   return 0;
 }
 

@@ -4,12 +4,13 @@ import { parseArgs } from "node:util";
 import { getDbHandle } from "../db/index.ts";
 import { applyMigrations, redactUrl } from "../db/migrate.ts";
 import { getEnv } from "../env.ts";
-import { formatIssue, ingestFlightFile, IngestFailure, reprocessFlights, type ReprocessSelection } from "../ingest/index.ts";
-import { loadDemoProgram } from "../../seed/load.ts";
-import { resetDatabase } from "./reset.ts";
-import { EXPORT_HELP, runBackup, runExport, runRestore } from "./export-commands.ts";
-import { createUser } from "../auth/accounts.ts";
+import type { ReprocessSelection } from "../ingest/index.ts";
+import { EXPORT_HELP } from "./export-help.ts";
 import { z } from "zod";
+
+// Each command loads only the modules it needs (the ingest pipeline, demo generator, argon2 and
+// the export code are large): start-up stays quick and an export's memory stays its own.
+const exportCommands = () => import("./export-commands.ts");
 
 const HELP = `Lapsebank command line
 
@@ -44,11 +45,11 @@ async function main(argv: string[]): Promise<number> {
     case "ingest":
       return runIngest(rest);
     case "export":
-      return runExport(rest);
+      return (await exportCommands()).runExport(rest);
     case "backup":
-      return runBackup(rest);
+      return (await exportCommands()).runBackup(rest);
     case "restore":
-      return runRestore(rest);
+      return (await exportCommands()).runRestore(rest);
     case "reprocess":
       return runReprocess(rest);
     case "admin":
@@ -72,6 +73,7 @@ async function runDemo(args: string[], url: string): Promise<number> {
     console.error(`The database ${redactUrl(url)} holds ${existing} flights. \`demo --yes\` deletes everything and loads the demo archive.`);
     return 1;
   }
+  const [{ resetDatabase }, { loadDemoProgram }] = await Promise.all([import("./reset.ts"), import("../../seed/load.ts")]);
   await resetDatabase(db);
   const started = Date.now();
   const report = await loadDemoProgram(db, {
@@ -100,6 +102,7 @@ async function runIngest(args: string[]): Promise<number> {
     return 2;
   }
   const { db } = getDbHandle();
+  const { formatIssue, ingestFlightFile, IngestFailure } = await import("../ingest/index.ts");
   let failed = 0;
   for (const [index, file] of positionals.entries()) {
     const label = `[${index + 1}/${positionals.length}] ${file}`;
@@ -197,6 +200,7 @@ async function runAdmin(args: string[]): Promise<number> {
   }
   const { db } = getDbHandle();
   try {
+    const { createUser } = await import("../auth/accounts.ts");
     const user = await createUser(db, { email: values.email ?? "", displayName: values.name ?? "", password: password ?? "" }, { programAdmin: true });
     console.log(`Program admin ${user.email} created.`);
     return 0;
@@ -248,6 +252,7 @@ async function runReprocess(args: string[]): Promise<number> {
     controller.abort();
   });
   const { db } = getDbHandle();
+  const { reprocessFlights } = await import("../ingest/index.ts");
   const result = await reprocessFlights(db, selection, {
     reason: "cli reprocess", force: values.force, actor: { userId: null, label: "cli" }, signal: controller.signal,
     onProgress: (done, total, outcome) => {

@@ -10,8 +10,9 @@ import packageJson from "../../package.json" with { type: "json" };
 import type { DbHandle, Db } from "../db/index.ts";
 import type { Viewer } from "../auth/visibility.ts";
 import { csvCell, csvLine, formatNumberCell } from "./csv.ts";
-import { ZipQueue } from "./zip-queue.ts";
+import { NativeDeflateEntry, ZipQueue } from "./zip-queue.ts";
 import { openLevelReader } from "./level-reader.ts";
+import { levelCsvPages, type RunOfFlight } from "./level-csv.ts";
 import { citationCff, dataPackageDescriptor, readmeText, tableSchema, type PackageFacts, type ResourceFacts } from "./package-metadata.ts";
 import {
   ExportRequestError,
@@ -206,6 +207,27 @@ async function* csvChunks(table: ExportTable<never>, pages: AsyncIterable<unknow
   }
 }
 
+/** The current runs of the scope's flights, a page at a time, for the levels fast path. */
+async function* runPages(handle: DbLike, viewer: Viewer, scope: ExportScope, pageSize: number): AsyncGenerator<RunOfFlight[]> {
+  for await (const page of readRunRefPages(handle.db, viewer, scope.flightIds, pageSize)) {
+    yield page.flatMap((f) => (f.run ? [{ flightId: f.id, runId: f.run.id }] : []));
+  }
+}
+
+/** CSV of one table. The levels table takes the fast path of level-csv.ts (same cells, formatted off the main thread). */
+async function* tableCsvChunks(handle: DbLike, viewer: Viewer, scope: ExportScope, name: TableName, pageSize: number, collected: Collected | null, counter: { rows: number }): AsyncGenerator<Uint8Array> {
+  if (name !== "levels") {
+    const { table, pages } = tablePages(handle, viewer, scope, name, pageSize, collected);
+    yield* csvChunks(table, pages(), counter);
+    return;
+  }
+  yield encoder.encode(csvLine(LEVELS_TABLE.fields.map((f) => f.name)));
+  for await (const page of levelCsvPages(handle, runPages(handle, viewer, scope, pageSize))) {
+    counter.rows += page.rows;
+    yield page.bytes;
+  }
+}
+
 function timestampForName(date: Date): string {
   return date.toISOString().slice(0, 19).replace(/[-:]/g, "").replace("T", "-");
 }
@@ -228,8 +250,8 @@ export async function createExport(handle: DbLike, viewer: Viewer, record: Recor
   const base = `lapsebank-${options.source}-${timestampForName(now)}`;
   switch (options.format) {
     case "csv": {
-      const { table, pages } = tablePages(handle, viewer, scope, options.table, pageSize, null);
-      return { fileName: `${base}-${table.name}.csv`, contentType: "text/csv; charset=utf-8", options, scope, body: csvChunks(table, pages(), { rows: 0 }) };
+      const { table } = tablePages(handle, viewer, scope, options.table, pageSize, null);
+      return { fileName: `${base}-${table.name}.csv`, contentType: "text/csv; charset=utf-8", options, scope, body: tableCsvChunks(handle, viewer, scope, options.table, pageSize, null, { rows: 0 }) };
     }
     case "json":
       return { fileName: `${base}.json`, contentType: "application/json; charset=utf-8", options, scope, body: jsonChunks(handle, viewer, scope, options, now, pageSize) };
@@ -327,40 +349,136 @@ async function* packageChunks(handle: DbLike, viewer: Viewer, scope: ExportScope
   }
 }
 
-/** The zip data package, streamed. Tables first (gathering provenance), then the descriptor, citation and README. */
+/** One CSV resource being written into the package: hashes and counts what passes through. */
+class ResourceSink {
+  private readonly hash = createHash("sha256");
+  private readonly format: (row: unknown) => string;
+  private bytes = 0;
+  private rows = 0;
+  readonly path: string;
+  private readonly entry: NativeDeflateEntry;
+
+  constructor(
+    private readonly queue: ZipQueue,
+    readonly table: ExportTable<never>,
+  ) {
+    this.path = `data/${table.name}.csv`;
+    this.entry = queue.nativeEntry(this.path);
+    this.format = rowFormatter(table.fields as ReadonlyArray<ExportField<unknown>>);
+  }
+
+  async header(): Promise<void> {
+    await this.write(encoder.encode(csvLine(this.table.fields.map((f) => f.name))), 0);
+  }
+
+  /** Formats and writes a page of rows. */
+  async rowsOf(page: readonly unknown[]): Promise<void> {
+    let text = "";
+    for (const row of page) text += this.format(row);
+    if (text) await this.write(encoder.encode(text), page.length);
+  }
+
+  /** Writes CSV records formatted elsewhere; `release` runs once the bytes are compressed. */
+  async write(bytes: Uint8Array, rows: number, release?: () => void): Promise<void> {
+    this.hash.update(bytes);
+    this.bytes += bytes.length;
+    this.rows += rows;
+    await this.queue.room();
+    await this.entry.write(bytes, release);
+  }
+
+  async end(): Promise<ResourceFacts> {
+    await this.entry.end();
+    return { table: this.table, path: this.path, bytes: this.bytes, sha256: this.hash.digest("hex"), rowCount: this.rows };
+  }
+}
+
+/**
+ * The zip data package, streamed. The levels table (millions of rows, formatted by worker threads)
+ * is the first entry; the other tables are written at the same time on this thread, and fflate
+ * places their compressed bytes after it. Flights and runs come from one pass over the flights.
+ * Then the raw files, the descriptor, citation and README.
+ */
 async function* packageEntries(handle: DbLike, viewer: Viewer, scope: ExportScope, options: ExportOptions, now: Date, pageSize: number): AsyncGenerator<Uint8Array> {
   const db = handle.db;
   const queue = new ZipQueue(now);
   const collected = newCollected();
-  const resources: ResourceFacts[] = [];
+  const names = packageTables(scope, options);
+  const written = new Map<TableName, ResourceFacts>();
+  let stopped = false;
+  const tableOf = (name: TableName) => tablePages(handle, viewer, scope, name, pageSize, collected);
 
-  for (const name of packageTables(scope, options)) {
-    const { table, pages } = tablePages(handle, viewer, scope, name, pageSize, collected);
-    const path = `data/${table.name}.csv`;
-    const entry = queue.entry(`${path}`, 1);
-    const hash = createHash("sha256");
-    const counter = { rows: 0 };
-    let bytes = 0;
-    for await (const chunk of csvChunks(table, pages(), counter)) {
-      hash.update(chunk);
-      bytes += chunk.length;
-      entry.push(chunk, false);
-      yield* queue.take();
+  // Entries in zip order: levels first, then the rest in the package's resource order.
+  const levels = new ResourceSink(queue, tableOf("levels").table);
+  const sinks = new Map<TableName, ResourceSink>(names.filter((n) => n !== "levels").map((name) => [name, new ResourceSink(queue, tableOf(name).table)]));
+  const sinkOf = (name: TableName) => sinks.get(name) as ResourceSink;
+
+  const writeLevels = async () => {
+    await levels.header();
+    for await (const page of levelCsvPages(handle, runPages(handle, viewer, scope, pageSize))) {
+      if (stopped) return;
+      await levels.write(page.bytes, page.rows, page.release);
     }
-    entry.push(new Uint8Array(0), true);
-    yield* queue.take();
-    resources.push({ table, path, bytes, sha256: hash.digest("hex"), rowCount: counter.rows });
-  }
-
-  if (options.raw) {
+    written.set("levels", await levels.end());
+  };
+  const writeFlightsAndRuns = async () => {
+    const flights = sinkOf("flights");
+    const runs = sinkOf("runs");
+    await flights.header();
+    await runs.header();
+    for await (const page of readFlightPages(db, viewer, scope.flightIds, pageSize)) {
+      if (stopped) return;
+      collect(collected, page);
+      await flights.rowsOf(page);
+      await runs.rowsOf(page.flatMap((f) => (f.run ? [f.run] : [])));
+    }
+    written.set("flights", await flights.end());
+    written.set("runs", await runs.end());
+  };
+  const writeTable = async (name: TableName) => {
+    const sink = sinkOf(name);
+    await sink.header();
+    for await (const page of tableOf(name).pages()) {
+      if (stopped) return;
+      await sink.rowsOf(page);
+    }
+    written.set(name, await sink.end());
+  };
+  const writeRawFiles = async () => {
     for await (const page of readFlightPages(db, viewer, scope.flightIds, pageSize)) {
       for (const f of page) {
+        if (stopped) return;
+        await queue.room();
         queue.entry(`${rawPath(f.id, f.rawFile.name)}`, 1).push(await readRawBytes(db, f.rawFile.id), true);
-        yield* queue.take();
       }
     }
+  };
+
+  let done = false;
+  const work = Promise.all([
+    writeLevels(),
+    (async () => {
+      await writeFlightsAndRuns();
+      for (const name of sinks.keys()) if (name !== "flights" && name !== "runs") await writeTable(name);
+      if (options.raw) await writeRawFiles();
+    })(),
+  ]).finally(() => {
+    done = true;
+  });
+  work.catch(() => {
+    stopped = true;
+  });
+  try {
+    while (!done) {
+      await Promise.race([queue.output(), work]);
+      yield* queue.take();
+    }
+    await work;
+  } finally {
+    stopped = true;
   }
 
+  const resources = names.map((name) => written.get(name) as ResourceFacts);
   const facts = packageFacts(options, scope, collected, now, await programName(db), resources);
   queue.text(`datapackage.json`, `${JSON.stringify(dataPackageDescriptor(facts), null, 2)}\n`);
   queue.text(`CITATION.cff`, citationCff(facts));

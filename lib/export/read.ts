@@ -8,8 +8,6 @@
 import type { DbHandle, Db, Prisma } from "../db/index.ts";
 import { flightVisibilityWhere, type Viewer } from "../auth/visibility.ts";
 import { archiveFilterSchema, archiveFlightWhere, type ArchiveFilter } from "../query/archive-filter.ts";
-import { ClimatologyQueryError, getClimatology } from "../query/climatology-core.ts";
-import { climatologySearchParams, parseClimatologyQuery } from "../query/climatology-params.ts";
 import type { ExportOptions } from "./request.ts";
 import type { LevelReader } from "./level-reader.ts";
 import type { CalibrationExportRow, FlightExportRow, LayerExportRow, LevelExportRow, QueryValueRow } from "./tables.ts";
@@ -126,6 +124,11 @@ export async function resolveExportScope(handle: DbLike, viewer: Viewer, options
  * the flights, the export writes them. Flights keep the engine's group order.
  */
 export async function climatologyScope(handle: DbLike, viewer: Viewer, queryRecord: Record<string, string>): Promise<ExportScope> {
+  // Loaded here, not at the top: archive and flight exports (and the CLI) need none of the statistics code.
+  const [{ ClimatologyQueryError, getClimatology }, { climatologySearchParams, parseClimatologyQuery }] = await Promise.all([
+    import("../query/climatology-core.ts"),
+    import("../query/climatology-params.ts"),
+  ]);
   const parsed = parseClimatologyQuery(queryRecord);
   if (!parsed.ok) throw new ExportRequestError(422, "invalid-query", parsed.message);
   let result;
