@@ -6,6 +6,9 @@ const maxUploadMb = Number(process.env.LAPSEBANK_MAX_UPLOAD_MB) > 0 ? Number(pro
 /** @type {import('next').NextConfig} */
 const nextConfig = {
   poweredByHeader: false,
+  // Responses are not gzipped here: that is the TLS reverse proxy's job on a shared server (see
+  // README), and on one machine it only costs the app process CPU (about 5 % of a busy server's).
+  compress: false,
   serverExternalPackages: ["better-sqlite3", "pg", "@prisma/adapter-better-sqlite3", "@prisma/adapter-pg", "csv-parse"],
   experimental: {
     serverActions: { bodySizeLimit: `${Math.ceil(maxUploadMb) + 1}mb` },

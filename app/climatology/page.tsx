@@ -1,6 +1,6 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { ClimatologyQueryError, getClimatology, type ClimatologyResult } from "@/lib/query/climatology";
+import { ClimatologyQueryError, getClimatologyCached, type ClimatologyResult } from "@/lib/query/climatology";
 import { climatologySearchParams, parseClimatologyQuery, searchRecord, type ClimatologyQuery } from "@/lib/query/climatology-params";
 import { listSchoolsAndSites } from "@/lib/query/setup";
 import { getViewer } from "@/app/_lib/viewer";
@@ -39,7 +39,7 @@ export default async function ClimatologyPage({ searchParams }: { searchParams: 
   let problem: { message: string; field: string | null } | null = null;
   if (parsed.ok) {
     try {
-      result = await getClimatology(viewer, parsed.query);
+      result = await getClimatologyCached(viewer, parsed.query);
     } catch (error) {
       if (!(error instanceof ClimatologyQueryError)) throw error;
       problem = { message: error.message, field: error.field };

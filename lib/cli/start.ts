@@ -30,7 +30,9 @@ async function start(): Promise<void> {
     if (build.status !== 0) process.exit(build.status ?? 1);
   }
   console.log(`Serving Lapsebank on http://localhost:${env.PORT}`);
-  const server = spawn("node_modules/.bin/next", ["start", "-p", String(env.PORT)], { stdio: "inherit" });
+  // A plain Node process of its own (no TypeScript loader, none of this process's memory); on
+  // PostgreSQL it runs one app process per core (lib/cli/app-server.mjs).
+  const server = spawn(process.execPath, ["lib/cli/app-server.mjs"], { stdio: "inherit", env: { ...process.env, PORT: String(env.PORT) } });
   for (const signal of ["SIGINT", "SIGTERM"] as const) process.on(signal, () => server.kill(signal));
   server.on("exit", (code) => process.exit(code ?? 0));
 }

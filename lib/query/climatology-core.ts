@@ -266,7 +266,7 @@ function candidateSql(viewer: Viewer, query: ClimatologyQuery, engine: SqlEngine
   // The candidates are materialised and drive the join (CROSS JOIN fixes the order on SQLite), so each
   // run's in-band levels are read by a range search on the (runId, phase, altitudeM) index.
   return sql`WITH c AS MATERIALIZED (${candidates}),
-    sums AS (
+    sums AS MATERIALIZED (
       SELECT l."runId" AS "runId", COUNT(*) AS n, SUM(${x}) AS sx, SUM(l."temperatureK") AS sy, SUM(${x} * ${x}) AS sxx,
         SUM(${x} * l."temperatureK") AS sxy, MIN(l."altitudeM") AS lo, MAX(l."altitudeM") AS hi, MAX(l."topM" - l."baseM") AS bin,
         MIN(l."baseM") AS "lowBase", MAX(l."baseM") AS "highBase"

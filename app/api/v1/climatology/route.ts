@@ -1,4 +1,4 @@
-import { ClimatologyQueryError, getClimatology } from "@/lib/query/climatology";
+import { ClimatologyQueryError, getClimatologyCached } from "@/lib/query/climatology";
 import { climatologySearchParams, parseClimatologyQuery, searchRecord } from "@/lib/query/climatology-params";
 import { getViewer } from "@/app/_lib/viewer";
 import { absoluteUrl, jsonError, jsonOk, withErrors } from "../_lib/respond";
@@ -17,7 +17,7 @@ export const GET = withErrors(async (request: Request) => {
   const query = parsed.query;
   let result;
   try {
-    result = await getClimatology(await getViewer(), query);
+    result = await getClimatologyCached(await getViewer(), query);
   } catch (error) {
     if (error instanceof ClimatologyQueryError) return jsonError(422, error.code, error.field ? `${error.field}: ${error.message}` : error.message);
     throw error;
