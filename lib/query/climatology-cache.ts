@@ -18,20 +18,36 @@ type DbLike = Pick<DbHandle, "db" | "engine" | "url">;
 
 /** Entries kept per process (least recently used go first). */
 const MAX_ENTRIES = 64;
-/** Results listing more flights than this are not kept (a whole large archive can be megabytes). */
-const MAX_FLIGHTS_KEPT = 20_000;
+/**
+ * Flights listed across all kept results: the memory bound (a result lists each contributing
+ * flight with its title and site, a few hundred bytes each, so this is some tens of megabytes).
+ */
+const MAX_FLIGHTS_KEPT = 50_000;
 
 interface Entry {
   revision: number;
   result: ClimatologyResult;
+  flights: number;
 }
 
-const caches = new WeakMap<Db, Map<string, Entry>>();
+interface Cache {
+  entries: Map<string, Entry>;
+  flights: number;
+}
+
+const caches = new WeakMap<Db, Cache>();
 
 /** The archive's change counter (see the archive_revision migration). */
 export async function archiveRevision(db: Db): Promise<number> {
   const row = await db.archiveRevision.findUnique({ where: { id: 1 }, select: { revision: true } });
   return row?.revision ?? 0;
+}
+
+function forget(cache: Cache, key: string): void {
+  const entry = cache.entries.get(key);
+  if (!entry) return;
+  cache.entries.delete(key);
+  cache.flights -= entry.flights;
 }
 
 function listedFlights(result: ClimatologyResult): number {
@@ -48,20 +64,22 @@ export async function getClimatologyCached(viewer: Viewer, query: ClimatologyQue
   const key = JSON.stringify([visibilitySql(viewer), query, options.profiles !== false]);
   let cache = caches.get(handle.db);
   if (!cache) {
-    cache = new Map();
+    cache = { entries: new Map(), flights: 0 };
     caches.set(handle.db, cache);
   }
-  const hit = cache.get(key);
+  const hit = cache.entries.get(key);
   if (hit && hit.revision === revision) {
-    cache.delete(key);
-    cache.set(key, hit); // most recently used last
+    cache.entries.delete(key);
+    cache.entries.set(key, hit); // most recently used last
     return hit.result;
   }
   const result = await getClimatology(viewer, query, handle, options);
-  if (listedFlights(result) <= MAX_FLIGHTS_KEPT) {
-    cache.delete(key);
-    cache.set(key, { revision, result });
-    while (cache.size > MAX_ENTRIES) cache.delete(cache.keys().next().value as string);
+  const flights = listedFlights(result);
+  forget(cache, key);
+  if (flights <= MAX_FLIGHTS_KEPT) {
+    cache.entries.set(key, { revision, result, flights });
+    cache.flights += flights;
+    while (cache.entries.size > MAX_ENTRIES || cache.flights > MAX_FLIGHTS_KEPT) forget(cache, cache.entries.keys().next().value as string);
   }
   return result;
 }
