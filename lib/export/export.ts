@@ -52,7 +52,7 @@ export interface ExportOutput {
 export interface ExportContext {
   /** The export's creation time (tests pass a fixed one). */
   now?: Date;
-  /** Rows of this many flights are read at once (default 25: smaller pages kept the 10,000-flight bench export about 60 MB lower at the same speed). */
+  /** Rows of this many flights are read at once (default 100; 25 saved some memory on PostgreSQL but cost time). */
   flightPageSize?: number;
 }
 
@@ -246,7 +246,7 @@ export async function createExport(handle: DbLike, viewer: Viewer, record: Recor
   const options = parsed.data;
   const scope = await resolveExportScope(handle, viewer, options, queryRecord);
   const now = context.now ?? new Date();
-  const pageSize = context.flightPageSize ?? 25;
+  const pageSize = context.flightPageSize ?? 100;
   const base = `lapsebank-${options.source}-${timestampForName(now)}`;
   switch (options.format) {
     case "csv": {

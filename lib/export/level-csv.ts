@@ -53,8 +53,19 @@ type WorkerReply = { seq: number; bytes: Uint8Array; rows: number } | { seq: num
 /** Runs per worker message: small enough that a page of long flights stays a few megabytes in a worker's heap. */
 const RUNS_PER_MESSAGE = 25;
 
+/** The pages' items again, in pages of exactly `size` (the last may be shorter), whatever size they came in. */
 async function* inPiecesOf<T>(size: number, pages: AsyncIterable<T[]>): AsyncGenerator<T[]> {
-  for await (const page of pages) for (let i = 0; i < page.length; i += size) yield page.slice(i, i + size);
+  let piece: T[] = [];
+  for await (const page of pages) {
+    for (const item of page) {
+      piece.push(item);
+      if (piece.length === size) {
+        yield piece;
+        piece = [];
+      }
+    }
+  }
+  if (piece.length) yield piece;
 }
 
 /** Levels CSV of SQLite runs, page by page, formatted by worker threads. */
@@ -168,13 +179,19 @@ async function* postgresLevelPages(url: string, pages: AsyncIterable<RunOfFlight
   const encoder = new TextEncoder();
   const query = (runs: RunOfFlight[]) =>
     pool.query<PgLevelRow>({
-      text: `SELECT "runId", "phase", count(*)::text, string_agg(${PG_LEVEL_NUMBERS}, E'\\n' ORDER BY "altitudeM")
-             FROM "ProfileLevel" WHERE "runId" = ANY($1::text[]) GROUP BY "runId", "phase"`,
+      // One index range scan per run (LATERAL, equality on the index's first column): the plan stays
+      // right even before the planner has statistics, e.g. just after a restore or a bulk load.
+      text: `SELECT r.id, x."phase", x.n, x.lines FROM unnest($1::text[]) AS r(id)
+             CROSS JOIN LATERAL (
+               SELECT l."phase", count(*)::text AS n, string_agg(${PG_LEVEL_NUMBERS}, E'\\n' ORDER BY l."altitudeM") AS lines
+               FROM "ProfileLevel" l WHERE l."runId" = r.id GROUP BY l."phase"
+             ) x`,
       values: [runs.map((r) => r.runId)],
       rowMode: "array",
     });
   const inFlight: Array<{ runs: RunOfFlight[]; result: ReturnType<typeof query> }> = [];
-  const source = pages[Symbol.asyncIterator]();
+  // A hundred runs per query: fewer round trips, a couple of megabytes of text per answer.
+  const source = inPiecesOf(100, pages)[Symbol.asyncIterator]();
   let exhausted = false;
   try {
     for (;;) {
