@@ -69,6 +69,9 @@ export async function benchExport(engines: Engine[]): Promise<BenchResult[]> {
     const database = await createTestDatabase(engine);
     try {
       const report = await writeSyntheticArchive(database, { flights: FLIGHTS });
+      // A production PostgreSQL gathers planner statistics after a bulk load (autovacuum); the
+      // throw-away bench cluster runs without autovacuum, so gather them as it would.
+      if (engine === "postgres") await database.db.$executeRawUnsafe("ANALYZE");
       const label = `${engine}, ${report.flights} flights, ${report.levels} levels`;
 
       const runIds = (await database.db.analysisRun.findMany({ where: { isCurrent: true }, select: { id: true } })).map((r) => r.id);
