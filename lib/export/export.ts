@@ -12,7 +12,7 @@ import type { Viewer } from "../auth/visibility.ts";
 import { csvCell, csvLine, formatNumberCell } from "./csv.ts";
 import { NativeDeflateEntry, ZipQueue } from "./zip-queue.ts";
 import { openLevelReader } from "./level-reader.ts";
-import { levelCsvPages, type RunOfFlight } from "./level-csv.ts";
+import { levelCsvPages, type CsvPage, type RunOfFlight } from "./level-csv.ts";
 import { citationCff, dataPackageDescriptor, readmeText, tableSchema, type PackageFacts, type ResourceFacts } from "./package-metadata.ts";
 import {
   ExportRequestError,
@@ -194,19 +194,6 @@ function rowFormatter(fields: ReadonlyArray<ExportField<unknown>>): (row: unknow
   };
 }
 
-/** CSV text of a table, header first, then one chunk per page of rows. */
-async function* csvChunks(table: ExportTable<never>, pages: AsyncIterable<unknown[]>, counter: { rows: number }): AsyncGenerator<Uint8Array> {
-  const fields = table.fields as ReadonlyArray<ExportField<unknown>>;
-  const format = rowFormatter(fields);
-  yield encoder.encode(csvLine(fields.map((f) => f.name)));
-  for await (const page of pages) {
-    let text = "";
-    for (const row of page) text += format(row);
-    counter.rows += page.length;
-    if (text) yield encoder.encode(text);
-  }
-}
-
 /** The current runs of the scope's flights, a page at a time, for the levels fast path. */
 async function* runPages(handle: DbLike, viewer: Viewer, scope: ExportScope, pageSize: number): AsyncGenerator<RunOfFlight[]> {
   for await (const page of readRunRefPages(handle.db, viewer, scope.flightIds, pageSize)) {
@@ -214,18 +201,32 @@ async function* runPages(handle: DbLike, viewer: Viewer, scope: ExportScope, pag
   }
 }
 
-/** CSV of one table. The levels table takes the fast path of level-csv.ts (same cells, formatted off the main thread). */
-async function* tableCsvChunks(handle: DbLike, viewer: Viewer, scope: ExportScope, name: TableName, pageSize: number, collected: Collected | null, counter: { rows: number }): AsyncGenerator<Uint8Array> {
-  if (name !== "levels") {
-    const { table, pages } = tablePages(handle, viewer, scope, name, pageSize, collected);
-    yield* csvChunks(table, pages(), counter);
+/** A table's CSV header line. */
+function csvHeader(table: ExportTable<never>): Uint8Array {
+  return encoder.encode(csvLine(table.fields.map((f) => f.name)));
+}
+
+/**
+ * CSV of one table as pages of bytes: the header, then the records a page of flights at a time.
+ * The levels table takes the fast path of level-csv.ts (same cells, formatted off the main thread).
+ */
+async function* tableCsvPages(handle: DbLike, viewer: Viewer, scope: ExportScope, name: TableName, pageSize: number, collected: Collected | null): AsyncGenerator<CsvPage> {
+  const { table, pages } = tablePages(handle, viewer, scope, name, pageSize, collected);
+  yield { bytes: csvHeader(table), rows: 0 };
+  if (name === "levels") {
+    yield* levelCsvPages(handle, runPages(handle, viewer, scope, pageSize));
     return;
   }
-  yield encoder.encode(csvLine(LEVELS_TABLE.fields.map((f) => f.name)));
-  for await (const page of levelCsvPages(handle, runPages(handle, viewer, scope, pageSize))) {
-    counter.rows += page.rows;
-    yield page.bytes;
+  const format = rowFormatter(table.fields as ReadonlyArray<ExportField<unknown>>);
+  for await (const page of pages()) {
+    let text = "";
+    for (const row of page) text += format(row);
+    if (text) yield { bytes: encoder.encode(text), rows: page.length };
   }
+}
+
+async function* bytesOf(pages: AsyncIterable<CsvPage>): AsyncGenerator<Uint8Array> {
+  for await (const page of pages) yield page.bytes;
 }
 
 function timestampForName(date: Date): string {
@@ -251,7 +252,7 @@ export async function createExport(handle: DbLike, viewer: Viewer, record: Recor
   switch (options.format) {
     case "csv": {
       const { table } = tablePages(handle, viewer, scope, options.table, pageSize, null);
-      return { fileName: `${base}-${table.name}.csv`, contentType: "text/csv; charset=utf-8", options, scope, body: tableCsvChunks(handle, viewer, scope, options.table, pageSize, null, { rows: 0 }) };
+      return { fileName: `${base}-${table.name}.csv`, contentType: "text/csv; charset=utf-8", options, scope, body: bytesOf(tableCsvPages(handle, viewer, scope, options.table, pageSize, null)) };
     }
     case "json":
       return { fileName: `${base}.json`, contentType: "application/json; charset=utf-8", options, scope, body: jsonChunks(handle, viewer, scope, options, now, pageSize) };
@@ -368,7 +369,7 @@ class ResourceSink {
   }
 
   async header(): Promise<void> {
-    await this.write(encoder.encode(csvLine(this.table.fields.map((f) => f.name))), 0);
+    await this.write(csvHeader(this.table), 0);
   }
 
   /** Formats and writes a page of rows. */
@@ -409,18 +410,10 @@ async function* packageEntries(handle: DbLike, viewer: Viewer, scope: ExportScop
   const tableOf = (name: TableName) => tablePages(handle, viewer, scope, name, pageSize, collected);
 
   // Entries in zip order: levels first, then the rest in the package's resource order.
-  const levels = new ResourceSink(queue, tableOf("levels").table);
-  const sinks = new Map<TableName, ResourceSink>(names.filter((n) => n !== "levels").map((name) => [name, new ResourceSink(queue, tableOf(name).table)]));
+  const zipOrder: TableName[] = ["levels", ...names.filter((n) => n !== "levels")];
+  const sinks = new Map<TableName, ResourceSink>(zipOrder.map((name) => [name, new ResourceSink(queue, tableOf(name).table)]));
   const sinkOf = (name: TableName) => sinks.get(name) as ResourceSink;
 
-  const writeLevels = async () => {
-    await levels.header();
-    for await (const page of levelCsvPages(handle, runPages(handle, viewer, scope, pageSize))) {
-      if (stopped) return;
-      await levels.write(page.bytes, page.rows, page.release);
-    }
-    written.set("levels", await levels.end());
-  };
   const writeFlightsAndRuns = async () => {
     const flights = sinkOf("flights");
     const runs = sinkOf("runs");
@@ -437,10 +430,9 @@ async function* packageEntries(handle: DbLike, viewer: Viewer, scope: ExportScop
   };
   const writeTable = async (name: TableName) => {
     const sink = sinkOf(name);
-    await sink.header();
-    for await (const page of tableOf(name).pages()) {
+    for await (const page of tableCsvPages(handle, viewer, scope, name, pageSize, collected)) {
       if (stopped) return;
-      await sink.rowsOf(page);
+      await sink.write(page.bytes, page.rows, page.release);
     }
     written.set(name, await sink.end());
   };
@@ -456,10 +448,10 @@ async function* packageEntries(handle: DbLike, viewer: Viewer, scope: ExportScop
 
   let done = false;
   const work = Promise.all([
-    writeLevels(),
+    writeTable("levels"),
     (async () => {
       await writeFlightsAndRuns();
-      for (const name of sinks.keys()) if (name !== "flights" && name !== "runs") await writeTable(name);
+      for (const name of names) if (name !== "levels" && name !== "flights" && name !== "runs") await writeTable(name);
       if (options.raw) await writeRawFiles();
     })(),
   ]).finally(() => {

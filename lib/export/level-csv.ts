@@ -17,7 +17,7 @@ import { Worker } from "node:worker_threads";
 import pg from "pg";
 import type { DbHandle } from "../db/index.ts";
 import { csvCell } from "./csv.ts";
-import { sqlitePath } from "./level-reader.ts";
+import { pgPoolConfig, sqlitePath } from "./level-reader.ts";
 
 /** A flight and its current run, in export order. */
 export interface RunOfFlight {
@@ -130,15 +130,6 @@ async function* sqliteLevelPages(url: string, pages: AsyncIterable<RunOfFlight[]
   }
 }
 
-/** A PostgreSQL URL without Prisma's schema parameter, and the search_path option it stood for. */
-function pgConnection(url: string): pg.PoolConfig {
-  const parsed = new URL(url);
-  const schema = parsed.searchParams.get("schema");
-  parsed.searchParams.delete("schema");
-  const options = [`-c extra_float_digits=1`, ...(schema ? [`-c search_path="${schema}"`] : [])].join(" ");
-  return { connectionString: parsed.toString(), options };
-}
-
 /** Each numeric cell as float8/int text, empty when missing: the same cells csv.ts writes. */
 const PG_LEVEL_NUMBERS = `concat("altitudeM", ',', "baseM", ',', "topM", ',', "sampleCount", ',', "temperatureK", ',', "temperatureSdK", ',', "pressureHpa", ',', "relativeHumidityPct")`;
 
@@ -175,7 +166,7 @@ function pgPageCsv(runs: readonly RunOfFlight[], result: readonly PgLevelRow[]):
  * work on consecutive pages at once (each server process formats on its own core).
  */
 async function* postgresLevelPages(url: string, pages: AsyncIterable<RunOfFlight[]>, connections: number): AsyncGenerator<CsvPage> {
-  const pool = new pg.Pool({ ...pgConnection(url), max: connections });
+  const pool = new pg.Pool({ ...pgPoolConfig(url, ["-c extra_float_digits=1"]), max: connections });
   const encoder = new TextEncoder();
   const query = (runs: RunOfFlight[]) =>
     pool.query<PgLevelRow>({

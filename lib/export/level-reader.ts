@@ -24,6 +24,18 @@ export function sqlitePath(url: string): string {
   return url.replace(/^file:/, "").replace(/\?.*$/, "");
 }
 
+/**
+ * pg pool settings for a PostgreSQL DATABASE_URL: Prisma's `schema` parameter becomes the
+ * search_path the driver needs; `options` adds more server settings (`-c name=value`).
+ */
+export function pgPoolConfig(url: string, options: string[] = []): pg.PoolConfig {
+  const parsed = new URL(url);
+  const schema = parsed.searchParams.get("schema");
+  parsed.searchParams.delete("schema");
+  const settings = [...options, ...(schema ? [`-c search_path="${schema}"`] : [])];
+  return { connectionString: parsed.toString(), ...(settings.length ? { options: settings.join(" ") } : {}) };
+}
+
 export function openLevelReader(handle: Pick<DbHandle, "engine" | "url">): LevelReader {
   if (handle.engine === "sqlite") {
     const database = new Database(sqlitePath(handle.url), { readonly: true, fileMustExist: true });
@@ -35,10 +47,7 @@ export function openLevelReader(handle: Pick<DbHandle, "engine" | "url">): Level
       close: async () => void database.close(),
     };
   }
-  const url = new URL(handle.url);
-  const schema = url.searchParams.get("schema");
-  url.searchParams.delete("schema");
-  const pool = new pg.Pool({ connectionString: url.toString(), max: 1, ...(schema ? { options: `-c search_path="${schema}"` } : {}) });
+  const pool = new pg.Pool({ ...pgPoolConfig(handle.url), max: 1 });
   return {
     read: async (runIds) => {
       if (runIds.length === 0) return [];
