@@ -6,8 +6,6 @@
  * The CLI acts as the local user (sees every flight), like the other commands.
  */
 import fs from "node:fs";
-import { Readable } from "node:stream";
-import { pipeline } from "node:stream/promises";
 import { parseArgs } from "node:util";
 import { getDbHandle } from "../db/index.ts";
 import { LOCAL_VIEWER } from "../auth/visibility.ts";
@@ -15,6 +13,28 @@ import { createExport, ExportRequestError } from "../export/export.ts";
 import { backupArchive, restoreArchive, RestoreRefused } from "../export/backup.ts";
 
 export { EXPORT_HELP } from "./export-help.ts";
+
+/**
+ * Writes the chunks to `file`, each before asking for the next (so the export may reuse a chunk's
+ * memory). A regular file is written under a ".part" name and renamed when complete, so a failed
+ * export never leaves a truncated file under the requested name.
+ */
+async function writeChunks(file: string, chunks: AsyncIterable<Uint8Array>): Promise<void> {
+  const special = fs.existsSync(file) && !fs.statSync(file).isFile(); // e.g. /dev/stdout
+  const target = special ? file : `${file}.part`;
+  const out = await fs.promises.open(target, "w");
+  try {
+    for await (const chunk of chunks) {
+      for (let offset = 0; offset < chunk.length; ) offset += (await out.write(chunk, offset)).bytesWritten;
+    }
+  } catch (error) {
+    await out.close();
+    if (!special) await fs.promises.rm(target, { force: true });
+    throw error;
+  }
+  await out.close();
+  if (!special) await fs.promises.rename(target, file);
+}
 
 /** `export …`: returns the process exit code. */
 export async function runExport(args: string[]): Promise<number> {
@@ -37,7 +57,7 @@ export async function runExport(args: string[]): Promise<number> {
   const started = performance.now();
   let output;
   try {
-    output = await createExport(getDbHandle(), LOCAL_VIEWER, record);
+    output = await createExport(getDbHandle(), LOCAL_VIEWER, record, { chunksDoneOnNext: true });
   } catch (error) {
     if (error instanceof ExportRequestError) {
       console.error(`export: ${error.message}`);
@@ -46,7 +66,7 @@ export async function runExport(args: string[]): Promise<number> {
     throw error;
   }
   const file = values.out ?? output.fileName;
-  await pipeline(Readable.from(output.body), fs.createWriteStream(file));
+  await writeChunks(file, output.body);
   const seconds = (performance.now() - started) / 1000;
   console.log(`Wrote ${file} (${output.scope.flightIds.length} flight${output.scope.flightIds.length === 1 ? "" : "s"}, ${(fs.statSync(file).size / 1048576).toFixed(1)} MB) in ${seconds.toFixed(1)} s`);
   return 0;

@@ -1,16 +1,21 @@
 import fs from "node:fs";
 import path from "node:path";
 import { parseArgs } from "node:util";
-import { getDbHandle } from "../db/index.ts";
 import { applyMigrations, redactUrl } from "../db/migrate.ts";
 import { getEnv } from "../env.ts";
 import type { ReprocessSelection } from "../ingest/index.ts";
 import { EXPORT_HELP } from "./export-help.ts";
 import { z } from "zod";
 
-// Each command loads only the modules it needs (the ingest pipeline, demo generator, argon2 and
-// the export code are large): start-up stays quick and an export's memory stays its own.
+// Each command loads only the modules it needs (the database client, ingest pipeline, demo
+// generator, argon2 and the export code are large): start-up stays quick and an export's memory
+// stays its own.
 const exportCommands = () => import("./export-commands.ts");
+let dbModule: typeof import("../db/index.ts") | undefined;
+async function getDbHandle() {
+  dbModule ??= await import("../db/index.ts");
+  return dbModule.getDbHandle();
+}
 
 const HELP = `Lapsebank command line
 
@@ -45,7 +50,8 @@ async function main(argv: string[]): Promise<number> {
     case "ingest":
       return runIngest(rest);
     case "export":
-      return (await exportCommands()).runExport(rest);
+      // In a worker with a capped heap, so a large export's peak memory stays bounded (export-worker.mjs).
+      return (await import("./export-worker.mjs")).runExportInWorker(rest);
     case "backup":
       return (await exportCommands()).runBackup(rest);
     case "restore":
@@ -67,7 +73,7 @@ async function main(argv: string[]): Promise<number> {
 
 async function runDemo(args: string[], url: string): Promise<number> {
   const { values } = parseArgs({ args, options: { yes: { type: "boolean", default: false } } });
-  const { db } = getDbHandle();
+  const { db } = await getDbHandle();
   const existing = await db.flight.count();
   if (existing > 0 && !values.yes) {
     console.error(`The database ${redactUrl(url)} holds ${existing} flights. \`demo --yes\` deletes everything and loads the demo archive.`);
@@ -101,7 +107,7 @@ async function runIngest(args: string[]): Promise<number> {
     console.error("ingest: name at least one file");
     return 2;
   }
-  const { db } = getDbHandle();
+  const { db } = await getDbHandle();
   const { formatIssue, ingestFlightFile, IngestFailure } = await import("../ingest/index.ts");
   let failed = 0;
   for (const [index, file] of positionals.entries()) {
@@ -198,7 +204,7 @@ async function runAdmin(args: string[]): Promise<number> {
     process.stderr.write("Password (at least 10 characters): ");
     password = await readLine();
   }
-  const { db } = getDbHandle();
+  const { db } = await getDbHandle();
   try {
     const { createUser } = await import("../auth/accounts.ts");
     const user = await createUser(db, { email: values.email ?? "", displayName: values.name ?? "", password: password ?? "" }, { programAdmin: true });
@@ -251,7 +257,7 @@ async function runReprocess(args: string[]): Promise<number> {
     console.error("\nInterrupted: finishing the current flight; run the same command again to resume.");
     controller.abort();
   });
-  const { db } = getDbHandle();
+  const { db } = await getDbHandle();
   const { reprocessFlights } = await import("../ingest/index.ts");
   const result = await reprocessFlights(db, selection, {
     reason: "cli reprocess", force: values.force, actor: { userId: null, label: "cli" }, signal: controller.signal,
@@ -274,7 +280,7 @@ async function runReprocess(args: string[]): Promise<number> {
 
 main(process.argv.slice(2)).then(
   async (code) => {
-    await getDbHandle().db.$disconnect().catch(() => undefined);
+    await dbModule?.getDbHandle().db.$disconnect().catch(() => undefined);
     process.exit(code);
   },
   (error) => {

@@ -54,6 +54,12 @@ export interface ExportContext {
   now?: Date;
   /** Rows of this many flights are read at once (default 100; 25 saved some memory on PostgreSQL but cost time). */
   flightPageSize?: number;
+  /**
+   * The consumer is done with each chunk of `body` by the time it asks for the next one (the CLI
+   * writes each chunk to its file first). The export may then reuse a chunk's memory for a later
+   * one. Leave unset when chunks are queued, e.g. by an HTTP response.
+   */
+  chunksDoneOnNext?: boolean;
 }
 
 type DbLike = Pick<DbHandle, "db" | "engine" | "url">;
@@ -225,8 +231,12 @@ async function* tableCsvPages(handle: DbLike, viewer: Viewer, scope: ExportScope
   }
 }
 
-async function* bytesOf(pages: AsyncIterable<CsvPage>): AsyncGenerator<Uint8Array> {
-  for await (const page of pages) yield page.bytes;
+/** The pages' bytes; when the consumer is done with a chunk on asking for the next, the page's buffer goes back for reuse then. */
+async function* bytesOf(pages: AsyncIterable<CsvPage>, chunksDoneOnNext: boolean): AsyncGenerator<Uint8Array> {
+  for await (const page of pages) {
+    yield page.bytes;
+    if (chunksDoneOnNext) page.release?.();
+  }
 }
 
 function timestampForName(date: Date): string {
@@ -252,7 +262,7 @@ export async function createExport(handle: DbLike, viewer: Viewer, record: Recor
   switch (options.format) {
     case "csv": {
       const { table } = tablePages(handle, viewer, scope, options.table, pageSize, null);
-      return { fileName: `${base}-${table.name}.csv`, contentType: "text/csv; charset=utf-8", options, scope, body: bytesOf(tableCsvPages(handle, viewer, scope, options.table, pageSize, null)) };
+      return { fileName: `${base}-${table.name}.csv`, contentType: "text/csv; charset=utf-8", options, scope, body: bytesOf(tableCsvPages(handle, viewer, scope, options.table, pageSize, null), context.chunksDoneOnNext ?? false) };
     }
     case "json":
       return { fileName: `${base}.json`, contentType: "application/json; charset=utf-8", options, scope, body: jsonChunks(handle, viewer, scope, options, now, pageSize) };

@@ -80,7 +80,8 @@ async function* sqliteLevelPages(url: string, pages: AsyncIterable<RunOfFlight[]
     const index = seq % workerCount;
     const existing = workers[index];
     if (existing) return existing;
-    const worker = new Worker(file, { workerData: { path: sqlitePath(url) }, resourceLimits: { maxOldGenerationSizeMb: 64, maxYoungGenerationSizeMb: 4 } });
+    // execArgv: []: the worker is plain JavaScript and needs none of the parent's loader flags (tsx would cost ~20 MB a thread).
+    const worker = new Worker(file, { workerData: { path: sqlitePath(url) }, execArgv: [], resourceLimits: { maxOldGenerationSizeMb: 64, maxYoungGenerationSizeMb: 4 } });
     worker.on("message", (reply: WorkerReply) => {
       const entry = waiting.get(reply.seq);
       waiting.delete(reply.seq);

@@ -6,8 +6,9 @@
  * ≤ 300 MB). Measured in the same run:
  * - a time baseline that only reads every level row through the database driver (no formatting,
  *   no zip), with the ratio export ÷ baseline;
- * - a memory baseline: the same command exporting a single flight, i.e. Node, tsx, Prisma and the
- *   export code loaded but no data to speak of; the difference is what the export itself holds.
+ * - a memory baseline: the same command exporting a single flight, i.e. Node, its export worker
+ *   with tsx, Prisma and the export code loaded but no data to speak of; the difference is what the
+ *   export itself holds.
  */
 import { spawn } from "node:child_process";
 import fs from "node:fs";
@@ -37,11 +38,19 @@ function peakRssKb(pid: number): number {
   }
 }
 
-/** Runs `lapsebank export …` as npm would (node --import tsx lib/cli/main.ts), sampling its peak RSS. */
+/** The command `npm run lapsebank` runs (package.json), e.g. ["node", "lib/cli/launch.mjs"]. */
+function lapsebankScript(): string[] {
+  const scripts = (JSON.parse(fs.readFileSync("package.json", "utf8")) as { scripts: Record<string, string> }).scripts;
+  const words = (scripts.lapsebank ?? "").split(/\s+/).filter(Boolean);
+  if (words[0] !== "node") throw new Error(`expected the lapsebank script to start with node, found "${scripts.lapsebank}"`);
+  return words.slice(1);
+}
+
+/** Runs `lapsebank export …` as npm would (the package.json script, without npm's own process), sampling its peak RSS. */
 async function runExportCommand(databaseUrl: string, args: string[]): Promise<CommandRun> {
   const out = path.join(fs.mkdtempSync(path.join(os.tmpdir(), "lapsebank-bench-export-")), "export.out");
   const started = performance.now();
-  const child = spawn(process.execPath, ["--import", "tsx", "lib/cli/main.ts", "export", ...args, "--out", out], {
+  const child = spawn(process.execPath, [...lapsebankScript(), "export", ...args, "--out", out], {
     env: { ...process.env, DATABASE_URL: databaseUrl },
     stdio: ["ignore", "pipe", "pipe"],
   });
@@ -88,7 +97,7 @@ export async function benchExport(engines: Engine[]): Promise<BenchResult[]> {
 
       const oneFlight = await database.db.flight.findFirstOrThrow({ select: { id: true } });
       const idle = await runExportCommand(database.url, ["--source", "flight", "--flight", oneFlight.id]);
-      results.push({ name: `baseline: peak RSS exporting one flight (${engine})`, value: idle.peakRssMb, unit: "MB", note: "the command with Node, tsx, Prisma and the export code loaded" });
+      results.push({ name: `baseline: peak RSS exporting one flight (${engine})`, value: idle.peakRssMb, unit: "MB", note: "the command with Node, its export worker, tsx, Prisma and the export code loaded" });
 
       for (const [what, args] of [
         ["data package, whole archive", []],
