@@ -129,7 +129,8 @@ export function ProfileChart({ data, title }: { data: ProfileChartData; title: s
       </div>
       <figcaption>
         Binned levels of the current analysis run. Ascent: solid line with circles; descent: dashed line with triangles.
-        Shaded bands are inversions; the purple line marks the tropopause. Reference slopes start at the lowest ascent level.
+        Shaded bands are inversions; the purple line marks the tropopause. Both adiabats start at the lowest ascent level: the dry one is straight; the saturated one is the path of a saturated
+        parcel lifted from there and bends towards the dry one as the air cools and holds less water.
       </figcaption>
     </figure>
   );

@@ -2,6 +2,8 @@
  * Turns stored levels, layers and summary numbers of one analysis run into the serializable
  * series the temperature–altitude chart draws. Pure: no data access, no clock.
  */
+import { moistAdiabaticLapseRateKPerKm, pseudoAdiabatTemperaturesK } from "@/lib/analysis/stability";
+import { standardAtmosphereAt } from "@/lib/analysis/standard-atmosphere";
 
 export interface ChartPoint {
   temperatureC: number;
@@ -25,13 +27,19 @@ export interface ReferenceSlope {
   points: [ChartPoint, ChartPoint];
 }
 
+/** A reference curve through several points (the saturated adiabat bends towards the dry one as it cools). */
+export interface ReferenceCurve {
+  label: string;
+  points: ChartPoint[];
+}
+
 export interface ProfileChartData {
   ascent: ChartPoint[];
   descent: ChartPoint[];
   inversions: ChartBand[];
   tropopauses: ChartMarker[];
   dryAdiabat: ReferenceSlope | null;
-  saturatedAdiabat: ReferenceSlope | null;
+  saturatedAdiabat: ReferenceCurve | null;
   temperatureDomainC: [number, number];
   altitudeDomainKm: [number, number];
   temperatureTicksC: number[];
@@ -42,6 +50,8 @@ export interface LevelInput {
   phase: string;
   altitudeM: number;
   temperatureK: number;
+  /** Measured pressure; without it the standard atmosphere's pressure at the altitude is used for the saturated adiabat. */
+  pressureHpa?: number | null;
 }
 
 export interface LayerInput {
@@ -94,11 +104,46 @@ export function referenceSlope(surface: ChartPoint, lapseRateKPerKm: number, top
   };
 }
 
+/**
+ * The saturated adiabat through the lowest ascent level: the temperature a saturated parcel lifted
+ * from there would have at each ascent level's pressure (pseudo-adiabatic, lib/analysis), up to
+ * `topKm`, cut where it leaves the chart's cold edge. Uses the measured pressure when every level
+ * up to the top has one, else the U.S. Standard Atmosphere 1976 pressure at each altitude.
+ */
+export function saturatedAdiabatCurve(ascentLevels: readonly LevelInput[], topKm: number, minTemperatureC: number): ReferenceCurve | null {
+  const start = ascentLevels[0];
+  if (!start) return null;
+  const path = ascentLevels.filter((l) => l.altitudeM / 1000 <= topKm + 1e-9);
+  if (path.length < 2) return null;
+  const measured = path.every((l) => typeof l.pressureHpa === "number" && Number.isFinite(l.pressureHpa) && l.pressureHpa > 0);
+  const pressureOf = (l: LevelInput): number => (measured ? (l.pressureHpa as number) : (standardAtmosphereAt(l.altitudeM)?.pressurePa ?? Number.NaN) / 100);
+  const startPressureHpa = pressureOf(start);
+  const temperaturesK = pseudoAdiabatTemperaturesK(start.temperatureK, startPressureHpa, path.map(pressureOf));
+  const points: ChartPoint[] = [];
+  let previousPressureHpa = Number.POSITIVE_INFINITY;
+  for (const [i, level] of path.entries()) {
+    const temperatureC = (temperaturesK[i] as number) - KELVIN_AT_0_C;
+    const pressureHpa = pressureOf(level);
+    // A pressure that fails to fall with height (sensor noise) has no place on a lifted parcel's path.
+    if (!Number.isFinite(temperatureC) || !(pressureHpa < previousPressureHpa)) continue;
+    if (temperatureC < minTemperatureC) break;
+    previousPressureHpa = pressureHpa;
+    points.push({ temperatureC: round(temperatureC, 3), altitudeKm: round(level.altitudeM / 1000, 4) });
+  }
+  if (points.length < 2) return null;
+  const startRate = moistAdiabaticLapseRateKPerKm(start.temperatureK, startPressureHpa);
+  return {
+    label: `saturated adiabat (Γm ${startRate.toFixed(2)} K/km at the start${measured ? "" : "; standard-atmosphere pressure"})`,
+    points,
+  };
+}
+
 /** Builds the chart data; every number is finite (non-finite inputs are dropped). */
 export function buildProfileChartData(levels: readonly LevelInput[], layers: readonly LayerInput[], summary: SummaryInput | null): ProfileChartData {
   const toPoint = (l: LevelInput): ChartPoint => ({ temperatureC: round(l.temperatureK - KELVIN_AT_0_C, 3), altitudeKm: round(l.altitudeM / 1000, 4) });
   const usable = levels.filter((l) => Number.isFinite(l.altitudeM) && Number.isFinite(l.temperatureK));
-  const ascent = usable.filter((l) => l.phase === "ascent").sort((a, b) => a.altitudeM - b.altitudeM).map(toPoint);
+  const ascentLevels = usable.filter((l) => l.phase === "ascent").sort((a, b) => a.altitudeM - b.altitudeM);
+  const ascent = ascentLevels.map(toPoint);
   // Descent drawn from the top down, the order in which it was flown.
   const descent = usable.filter((l) => l.phase === "descent").sort((a, b) => b.altitudeM - a.altitudeM).map(toPoint);
 
@@ -129,21 +174,18 @@ export function buildProfileChartData(levels: readonly LevelInput[], layers: rea
     tropopauses.push({ altitudeKm: round(summary.secondTropopauseAltitudeM / 1000, 4), label: `second tropopause ${(summary.secondTropopauseAltitudeM / 1000).toFixed(2)} km` });
   }
 
-  // Γd is the same for every layer; Γm depends on the layer's mean T and p, so the troposphere
-  // layer (surface to tropopause) gives the most representative single slope.
+  // Γd is the same for every layer (the run's stored value); the saturated adiabat is a curve: Γm
+  // grows towards Γd as the parcel cools, so it is computed along the way, not drawn as one slope.
   const ascentLayers = layers.filter((l) => l.phase === "ascent");
   const reference = ascentLayers.find((l) => l.kind === "troposphere") ?? [...ascentLayers].sort((a, b) => a.baseM - b.baseM)[0] ?? null;
   const surface = ascent[0] ?? null;
   const topKm = tropopauses[0]?.altitudeKm ?? ascent[ascent.length - 1]?.altitudeKm ?? 0;
   let dryAdiabat: ReferenceSlope | null = null;
-  let saturatedAdiabat: ReferenceSlope | null = null;
   if (surface && reference) {
     const gd = reference.dryAdiabaticLapseRateKPerKm;
-    const gm = reference.moistAdiabaticLapseRateKPerKm;
-    const meanC = (reference.meanTemperatureK - KELVIN_AT_0_C).toFixed(0);
     dryAdiabat = referenceSlope(surface, gd, topKm, temperatureDomainC[0], `dry adiabatic Γd ${gd.toFixed(2)} K/km`);
-    saturatedAdiabat = referenceSlope(surface, gm, topKm, temperatureDomainC[0], `saturated adiabatic Γm ${gm.toFixed(2)} K/km (at layer mean ${meanC} °C)`);
   }
+  const saturatedAdiabat = saturatedAdiabatCurve(ascentLevels, topKm, temperatureDomainC[0]);
 
   const temperatureTicksC = niceTicks(temperatureDomainC[0], temperatureDomainC[1], [5, 10, 20]);
   const altitudeTicksKm = niceTicks(altitudeDomainKm[0], altitudeDomainKm[1], [0.5, 1, 2, 5, 10]);

@@ -5,7 +5,7 @@ import {
   saturationVapourPressureMagnusHpa,
   virtualTemperatureK,
 } from "../../lib/analysis/moisture";
-import { classifyStability, dryAdiabaticLapseRateKPerKm, moistAdiabaticLapseRateKPerKm } from "../../lib/analysis/stability";
+import { classifyStability, dryAdiabaticLapseRateKPerKm, moistAdiabaticLapseRateKPerKm, pseudoAdiabatTemperaturesK } from "../../lib/analysis/stability";
 
 describe("saturation vapour pressure", () => {
   // Bolton (1980) formula; values REFERENCE.md §3 [D]
@@ -79,5 +79,65 @@ describe("stability classes", () => {
     [11, "absolutely-unstable"],
   ] as const)("Γe = %f K/km with Γm = 4, Γd = 9.77 → %s", (gammaE, cls) => {
     expect(classifyStability(gammaE, 9.77, 4)).toBe(cls);
+  });
+});
+
+/**
+ * Equivalent potential temperature, K, of saturated air at T (K) and p (hPa): Bolton (1980),
+ * Mon. Wea. Rev. 108, eq. 43, with T_L = T for saturated air and r in g/kg. Transcribed from memory.
+ */
+function equivalentPotentialTemperatureBoltonK(temperatureK: number, pressureHpa: number): number {
+  const es = saturationVapourPressureBoltonHpa(temperatureK);
+  const r = (1000 * 0.622 * es) / (pressureHpa - es);
+  const theta = temperatureK * (1000 / pressureHpa) ** (0.2854 * (1 - 0.28e-3 * r));
+  return theta * Math.exp((3.376 / temperatureK - 0.00254) * r * (1 + 0.81e-3 * r));
+}
+
+describe("saturated adiabat (pseudo-adiabat)", () => {
+  const pressures = [950, 850, 700, 500, 400, 300, 250, 200];
+
+  // θe is conserved along a pseudo-adiabat (Bolton 1980). Our Γm (AMS Glossary form) leaves out the
+  // heat capacity of the condensed water, so the match is close but not exact: within 1 K for
+  // parcels starting at 20 °C or colder [D: measured 0.6 K at most], within 3 K from 30 °C.
+  test.each([
+    [-10, 1],
+    [0, 1],
+    [10, 1],
+    [20, 1],
+    [30, 3],
+  ])("from %f °C at 1000 hPa, θe stays within %f K up to 200 hPa", (startC, toleranceK) => {
+    const start = equivalentPotentialTemperatureBoltonK(startC + 273.15, 1000);
+    const temperatures = pseudoAdiabatTemperaturesK(startC + 273.15, 1000, pressures);
+    for (const [i, p] of pressures.entries()) {
+      const t = temperatures[i] as number;
+      expect(Number.isFinite(t)).toBe(true);
+      expect(Math.abs(equivalentPotentialTemperatureBoltonK(t, p) - start)).toBeLessThan(toleranceK);
+    }
+  });
+
+  test("its first metres fall at Γm (20 °C, 1000 hPa → 4.22 K/km, REFERENCE.md §3)", () => {
+    const [t] = pseudoAdiabatTemperaturesK(293.15, 1000, [999]);
+    // Hypsometric thickness of 1000 → 999 hPa at the layer's mean temperature (AMS Glossary) [D]
+    const meanK = (293.15 + (t as number)) / 2;
+    const thicknessKm = ((287.04 * meanK) / 9.80665) * Math.log(1000 / 999) / 1000;
+    expect((293.15 - (t as number)) / thicknessKm).toBeCloseTo(4.22, 2);
+  });
+
+  test("cools monotonically, faster than Γm near the ground and towards Γd aloft", () => {
+    const temperatures = pseudoAdiabatTemperaturesK(293.15, 1000, pressures);
+    expect(temperatures.every((t, i) => i === 0 || t < (temperatures[i - 1] as number))).toBe(true);
+    // [D] cold air holds little vapour: between 250 and 200 hPa the curve runs within 3 % of the dry adiabat (θ constant)
+    const t250 = temperatures[6] as number;
+    const dry200 = t250 * (200 / 250) ** (287.04 / 1004);
+    expect(Math.abs((temperatures[7] as number) - dry200)).toBeLessThan(0.03 * (t250 - dry200));
+  });
+
+  test("answers in the order asked, ignores pressures above the start, NaN for bad input", () => {
+    const [a, b, c] = pseudoAdiabatTemperaturesK(283.15, 900, [500, 1000, 700]);
+    const [d, e] = pseudoAdiabatTemperaturesK(283.15, 900, [700, 500]);
+    expect(a).toBe(e);
+    expect(c).toBe(d);
+    expect(b).toBeNaN();
+    expect(pseudoAdiabatTemperaturesK(Number.NaN, 900, [800])).toEqual([Number.NaN]);
   });
 });

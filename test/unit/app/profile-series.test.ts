@@ -1,5 +1,7 @@
 import { describe, expect, test } from "vitest";
-import { buildProfileChartData, niceTicks, referenceSlope, type LayerInput, type LevelInput } from "@/app/_lib/profile-series";
+import { buildProfileChartData, niceTicks, referenceSlope, saturatedAdiabatCurve, type LayerInput, type LevelInput } from "@/app/_lib/profile-series";
+import { pseudoAdiabatTemperaturesK } from "@/lib/analysis/stability";
+import { standardAtmosphereAt } from "@/lib/analysis/standard-atmosphere";
 
 // An idealised sounding: 288.15 K at the ground falling 6.5 K/km to 11 km, isothermal above
 // (U.S. Standard Atmosphere 1976, layers 0 and 1), binned every 500 m.
@@ -44,7 +46,18 @@ describe("buildProfileChartData", () => {
     const [start, end] = dry?.points ?? [];
     // [D] slope of the drawn segment equals Γd; end points are rounded to 0.001 °C and 0.1 m, so 3 decimals
     expect(((start?.temperatureC ?? 0) - (end?.temperatureC ?? 0)) / ((end?.altitudeKm ?? 0) - (start?.altitudeKm ?? 0))).toBeCloseTo(9.77, 3);
-    expect(data.saturatedAdiabat?.lapseRateKPerKm).toBe(7.5);
+  });
+
+  test("the saturated adiabat is a curve from the lowest ascent level, up to the tropopause", () => {
+    const points = data.saturatedAdiabat?.points ?? [];
+    expect(points[0]).toEqual(data.ascent[0]);
+    expect(points.length).toBeGreaterThan(10);
+    expect(points[points.length - 1]?.altitudeKm).toBeLessThanOrEqual(11);
+    // No measured pressure in these levels: the label says the standard atmosphere's was used.
+    expect(data.saturatedAdiabat?.label).toMatch(/^saturated adiabat \(Γm \d\.\d\d K\/km at the start; standard-atmosphere pressure\)$/);
+    // [D] Γm grows as the parcel cools: the curve's slope in the top kilometres is steeper than near the ground.
+    const slope = (a: number, b: number) => ((points[a]?.temperatureC ?? 0) - (points[b]?.temperatureC ?? 0)) / ((points[b]?.altitudeKm ?? 0) - (points[a]?.altitudeKm ?? 1));
+    expect(slope(points.length - 3, points.length - 1)).toBeGreaterThan(slope(0, 2) + 1);
   });
 
   test("domains enclose the data on round values", () => {
@@ -63,6 +76,32 @@ describe("buildProfileChartData", () => {
   test("non-finite levels are dropped", () => {
     const d = buildProfileChartData([{ phase: "ascent", altitudeM: Number.NaN, temperatureK: 280 }, { phase: "ascent", altitudeM: 100, temperatureK: 280 }], [], null);
     expect(d.ascent).toHaveLength(1);
+  });
+});
+
+describe("saturatedAdiabatCurve", () => {
+  // Levels of the U.S. Standard Atmosphere 1976 (temperature and pressure from lib/analysis), as if measured.
+  const measured: LevelInput[] = [0, 1000, 2000, 3000, 4000, 5000, 6000].map((z) => {
+    const state = standardAtmosphereAt(z);
+    return { phase: "ascent", altitudeM: z, temperatureK: state?.temperatureK ?? Number.NaN, pressureHpa: (state?.pressurePa ?? Number.NaN) / 100 };
+  });
+
+  test("follows the pseudo-adiabat at each level's measured pressure", () => {
+    const curve = saturatedAdiabatCurve(measured, 10, -80);
+    const expected = pseudoAdiabatTemperaturesK(288.15, 1013.25, measured.map((l) => l.pressureHpa as number));
+    expect(curve?.points.map((p) => p.altitudeKm)).toEqual([0, 1, 2, 3, 4, 5, 6]);
+    for (const [i, p] of (curve?.points ?? []).entries()) expect(p.temperatureC).toBeCloseTo((expected[i] as number) - 273.15, 3);
+    expect(curve?.label).toBe("saturated adiabat (Γm 4.73 K/km at the start)"); // REFERENCE.md §3: Γm(15 °C, 1013.25 hPa) = 4.73
+  });
+
+  test("skips a level whose pressure does not fall, stops at the chart's cold edge and at the top", () => {
+    const noisy = measured.map((l, i) => (i === 3 ? { ...l, pressureHpa: 900 } : l));
+    expect(saturatedAdiabatCurve(noisy, 10, -80)?.points.map((p) => p.altitudeKm)).toEqual([0, 1, 2, 4, 5, 6]);
+    expect(saturatedAdiabatCurve(measured, 3, -80)?.points.map((p) => p.altitudeKm)).toEqual([0, 1, 2, 3]);
+    const cut = saturatedAdiabatCurve(measured, 10, 0)?.points ?? [];
+    expect(cut.every((p) => p.temperatureC >= 0)).toBe(true);
+    expect(cut.length).toBeLessThan(7);
+    expect(saturatedAdiabatCurve(measured.slice(0, 1), 10, -80)).toBeNull();
   });
 });
 
