@@ -11,9 +11,9 @@ import {
 import { loggerLayoutSpecSchema } from "@/lib/ingest/layout";
 import { analysisParametersSchema } from "@/lib/ingest/schemas";
 import {
-  CalibrationFitError, calibrationFitInputSchema, fitCalibrationPoints, mountSensor, payloadUpdateSchema, previewLayoutSample,
+  CalibrationFitError, calibrationFitInputSchema, deleteSetupItem, findSetupItem, fitCalibrationPoints, mountSensor, SETUP_ITEM_KINDS, payloadUpdateSchema, previewLayoutSample,
   sensorMountInputSchema, sensorUpdateSchema, setProgramParameters, SetupConflictError, siteUpdateSchema, updateLayout, updatePayload,
-  updateSensor, updateSite, type CalibrationFitResult, type LayoutPreview,
+  updateSensor, updateSite, type CalibrationFitResult, type LayoutPreview, type SetupItemKind,
 } from "@/lib/ingest/setup-more";
 import { currentActor, getViewer } from "@/app/_lib/viewer";
 import { actionFailure, actionOk, zodFailure, type ActionResult } from "./_lib/action-result";
@@ -63,6 +63,39 @@ export async function saveSite(input: z.input<typeof siteFormSchema>): Promise<A
     const site = await createSite(db, siteInputSchema.parse(data));
     refreshSetup();
     return actionOk({ id: site.id });
+  } catch (error) {
+    return knownFailure(error);
+  }
+}
+
+// --- deleting -------------------------------------------------------------------------------------
+
+const deleteItemSchema = z.object({ kind: z.enum(SETUP_ITEM_KINDS), id: z.string().min(1).max(64) });
+
+const LIST_PATH: Record<Exclude<SetupItemKind, "calibration">, string> = {
+  site: "/setup/sites",
+  payload: "/setup/payloads",
+  sensor: "/setup/sensors",
+  layout: "/setup/layouts",
+};
+
+/**
+ * Deletes a site, payload, sensor, calibration or logger layout that nothing uses (lib/ingest
+ * deleteSetupItem says what uses it otherwise). Answers the page to go to next.
+ */
+export async function deleteSetupItemAction(input: z.input<typeof deleteItemSchema>): Promise<ActionResult<{ nextPath: string }>> {
+  const parsed = deleteItemSchema.safeParse(input);
+  if (!parsed.success) return zodFailure(parsed.error);
+  const { kind, id } = parsed.data;
+  const db = getDb();
+  try {
+    const item = await findSetupItem(db, kind, id);
+    if (!item) return actionFailure(`That ${kind} no longer exists`);
+    if (!(await mayEdit(item.schoolId))) return actionFailure(NOT_ALLOWED);
+    const actor = await currentActor("web setup");
+    await db.$transaction((tx) => deleteSetupItem(tx, kind, id, actor));
+    refreshSetup();
+    return actionOk({ nextPath: kind === "calibration" ? `/setup/sensors/${item.sensorId ?? ""}` : LIST_PATH[kind] });
   } catch (error) {
     return knownFailure(error);
   }

@@ -5,6 +5,7 @@ import { can } from "../auth/permissions.ts";
 import { flightVisibilityWhere, type Viewer } from "../auth/visibility.ts";
 import { getProgramParameters } from "../ingest/store.ts";
 import { DEFAULT_PARAMETERS } from "../ingest/schemas.ts";
+import { setupItemUses, type SetupItemKind } from "../ingest/setup-more.ts";
 
 const iso = (d: Date) => d.toISOString();
 const isoOrNull = (d: Date | null) => (d ? d.toISOString() : null);
@@ -237,3 +238,8 @@ export async function getRunHistory(viewer: Viewer, flightId: string, db: Db = g
 
 export type RunHistory = NonNullable<Awaited<ReturnType<typeof getRunHistory>>>;
 export type RunHistoryEntry = RunHistory["runs"][number];
+
+/** What uses a setup item ("3 flights"), for its page's delete button; empty when it can be deleted. */
+export async function getSetupItemUses(kind: SetupItemKind, id: string, db: Db = getDb()): Promise<string[]> {
+  return setupItemUses(db, kind, id);
+}

@@ -119,3 +119,30 @@ describe("setup: calibration helper and re-analysis", () => {
     expect(pageErrors).toEqual([]);
   });
 });
+
+describe("setup: deleting an item entered by mistake", () => {
+  it("a new site can be deleted after confirming; a site with flights offers no delete button", async () => {
+    const { page, pageErrors } = session;
+    await page.goto("/setup/sites");
+    const form = page.getByRole("form", { name: "New site" });
+    await form.getByLabel("School").selectOption({ index: 1 });
+    await form.getByLabel("Site name").fill("Misspelt Feild");
+    await form.getByLabel("Latitude (°, north positive)").fill("10");
+    await form.getByLabel("Longitude (°, east positive)").fill("20");
+    await form.getByLabel("Elevation (m above sea level)").fill("300");
+    await form.getByLabel("Time zone (IANA name)").fill("UTC");
+    await form.getByRole("button", { name: "Create site" }).click();
+    await page.waitForURL(/\/setup\/sites\/[^/?]+\?saved=1$/);
+    page.once("dialog", (dialog) => void dialog.accept());
+    await page.getByRole("button", { name: "Delete this site" }).click();
+    await page.waitForURL(/\/setup\/sites$/);
+    await expect.poll(() => dataRows(page, "Sites").filter({ hasText: "Misspelt Feild" }).count()).toBe(0);
+
+    // Every demo site has flights: its page says why it cannot be deleted.
+    await dataRows(page, "Sites").first().getByRole("link").first().click();
+    await page.waitForURL(/\/setup\/sites\/[^/?]+$/);
+    expect(await page.getByRole("button", { name: "Delete this site" }).count()).toBe(0);
+    expect(await page.getByText(/In use by \d+ flights?, so it cannot be deleted/).count()).toBe(1);
+    expect(pageErrors).toEqual([]);
+  });
+});

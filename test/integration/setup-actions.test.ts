@@ -162,6 +162,24 @@ describe("Setup server actions (SQLite)", () => {
     expect(await database.db.site.count({ where: { name: "Nope" } })).toBe(0);
   });
 
+  test("delete: refused for a site with flights and for a reader; an unused site goes and the page moves to the list", async () => {
+    const inUse = await actions.deleteSetupItemAction({ kind: "site", id: ids.site.id });
+    expect(inUse).toMatchObject({ ok: false });
+    if (!inUse.ok) expect(inUse.message).toMatch(/is used by \d+ flights?, so it cannot be deleted/);
+    const spare = await actions.saveSite({ schoolId: ids.school.id, name: "Typo Field", latitudeDeg: 1, longitudeDeg: 1, elevationM: 1, timeZone: "UTC" });
+    if (!spare.ok) throw new Error(spare.message);
+    try {
+      asking.viewer = { kind: "member", userId: "u-2", isProgramAdmin: false, schoolIds: [ids.school.id], memberships: [{ schoolId: ids.school.id, role: "reader" }] };
+      expect(await actions.deleteSetupItemAction({ kind: "site", id: spare.data.id })).toMatchObject({ ok: false, message: "You may not change this school's setup" });
+    } finally {
+      asking.viewer = { kind: "local" };
+    }
+    expect(await actions.deleteSetupItemAction({ kind: "site", id: spare.data.id })).toEqual({ ok: true, data: { nextPath: "/setup/sites" } });
+    expect(await database.db.site.count({ where: { id: spare.data.id } })).toBe(0);
+    expect(await actions.deleteSetupItemAction({ kind: "site", id: spare.data.id })).toMatchObject({ ok: false, message: "That site no longer exists" });
+    expect(await actions.deleteSetupItemAction({ kind: "school" as never, id: "x" })).toMatchObject({ ok: false });
+  });
+
   test("JSON API: overlap answers 409 in the one error shape; re-analysis streams one NDJSON line per flight and a summary", async () => {
     const calibrations = await import("../../app/api/v1/setup/calibrations/route.ts");
     const overlap = await calibrations.POST(new Request("http://local/api/v1/setup/calibrations", {

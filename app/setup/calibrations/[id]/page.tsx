@@ -3,10 +3,11 @@ import Link from "next/link";
 import { notFound } from "next/navigation";
 import { connection } from "next/server";
 import { temperatureCalibrationSchema } from "@/lib/ingest/schemas";
-import { getSetupCalibration } from "@/lib/query/setup-pages";
+import { getSetupCalibration, getSetupItemUses } from "@/lib/query/setup-pages";
 import { CalibrationForm } from "@/app/_components/setup/calibration-form";
 import { getViewer } from "@/app/_lib/viewer";
 import { membersOnly } from "@/app/setup/_lib/members-only";
+import { DeleteItemButton } from "@/app/_components/setup/delete-item-button";
 
 export const metadata: Metadata = { title: "Calibration · Setup" };
 
@@ -18,6 +19,7 @@ export default async function CalibrationPage({ params }: { params: Promise<{ id
   const { id } = await params;
   const calibration = await getSetupCalibration(id);
   if (!calibration) notFound();
+  const usedBy = await getSetupItemUses("calibration", calibration.id);
   const spec = temperatureCalibrationSchema.safeParse(calibration.spec);
   return (
     <>
@@ -33,6 +35,8 @@ export default async function CalibrationPage({ params }: { params: Promise<{ id
         sensor={{ id: calibration.sensor.id, serial: calibration.sensor.serial }}
         initial={{ id: calibration.id, spec: spec.success ? spec.data : null, validFromUtc: calibration.validFromUtc, validToUtc: calibration.validToUtc, method: calibration.method, notes: calibration.notes, referenceReadings: calibration.referenceReadings }}
       />
+      <h2>Delete</h2>
+      <DeleteItemButton kind="calibration" id={calibration.id} name={calibration.id} usedBy={usedBy} />
     </>
   );
 }

@@ -3,10 +3,11 @@ import Link from "next/link";
 import { notFound } from "next/navigation";
 import { connection } from "next/server";
 import { loggerLayoutSpecSchema } from "@/lib/ingest/layout";
-import { getSetupLayout, listSetupSchools } from "@/lib/query/setup-pages";
+import { getSetupLayout, listSetupSchools, getSetupItemUses } from "@/lib/query/setup-pages";
 import { LayoutForm } from "@/app/_components/setup/layout-form";
 import { getViewer } from "@/app/_lib/viewer";
 import { membersOnly } from "@/app/setup/_lib/members-only";
+import { DeleteItemButton } from "@/app/_components/setup/delete-item-button";
 
 export const metadata: Metadata = { title: "Logger layout · Setup" };
 
@@ -18,6 +19,7 @@ export default async function LayoutPage({ params }: { params: Promise<{ id: str
   const { id } = await params;
   const [layout, schools] = await Promise.all([getSetupLayout(id), listSetupSchools()]);
   if (!layout) notFound();
+  const usedBy = await getSetupItemUses("layout", layout.id);
   const spec = loggerLayoutSpecSchema.safeParse(layout.spec);
   return (
     <>
@@ -29,6 +31,8 @@ export default async function LayoutPage({ params }: { params: Promise<{ id: str
       </p>
       {!spec.success && <p className="notice notice-warn">The stored layout could not be read ({spec.error.issues[0]?.message}); enter it again.</p>}
       <LayoutForm schools={schools} initial={{ id: layout.id, schoolId: layout.schoolId, spec: spec.success ? spec.data : null }} />
+      <h2>Delete</h2>
+      <DeleteItemButton kind="layout" id={layout.id} name={layout.name} usedBy={usedBy} />
     </>
   );
 }

@@ -2,10 +2,11 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
 import { connection } from "next/server";
-import { getSetupPayload, listSetupSchools } from "@/lib/query/setup-pages";
+import { getSetupPayload, listSetupSchools, getSetupItemUses } from "@/lib/query/setup-pages";
 import { PayloadForm } from "@/app/_components/setup/payload-form";
 import { getViewer } from "@/app/_lib/viewer";
 import { membersOnly } from "@/app/setup/_lib/members-only";
+import { DeleteItemButton } from "@/app/_components/setup/delete-item-button";
 
 export const metadata: Metadata = { title: "Payload · Setup" };
 
@@ -17,6 +18,7 @@ export default async function SetupPayloadPage({ params }: { params: Promise<{ i
   const { id } = await params;
   const [payload, schools] = await Promise.all([getSetupPayload(id), listSetupSchools()]);
   if (!payload) notFound();
+  const usedBy = await getSetupItemUses("payload", payload.id);
   return (
     <>
       <p className="small"><Link href="/setup/payloads">← Payloads</Link></p>
@@ -36,6 +38,8 @@ export default async function SetupPayloadPage({ params }: { params: Promise<{ i
           </table>
         </div>
       )}
+      <h2>Delete</h2>
+      <DeleteItemButton kind="payload" id={payload.id} name={payload.name} usedBy={usedBy} />
     </>
   );
 }

@@ -2,12 +2,13 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
 import { connection } from "next/server";
-import { getSetupSensor, listSetupSchools } from "@/lib/query/setup-pages";
+import { getSetupSensor, listSetupSchools, getSetupItemUses } from "@/lib/query/setup-pages";
 import { MountForm, SensorForm } from "@/app/_components/setup/sensor-form";
 import { describeCalibration } from "@/app/_lib/format";
 import { getViewer } from "@/app/_lib/viewer";
 import type { SearchParams } from "../../_lib/search-params";
 import { membersOnly } from "@/app/setup/_lib/members-only";
+import { DeleteItemButton } from "@/app/_components/setup/delete-item-button";
 
 export const metadata: Metadata = { title: "Sensor · Setup" };
 
@@ -22,6 +23,7 @@ export default async function SetupSensorPage({ params, searchParams }: { params
   const saved = (await searchParams).saved === "calibration";
   const [sensor, schools] = await Promise.all([getSetupSensor(id), listSetupSchools()]);
   if (!sensor) notFound();
+  const usedBy = await getSetupItemUses("sensor", sensor.id);
   return (
     <>
       <p className="small"><Link href="/setup/sensors">← Sensors</Link></p>
@@ -62,6 +64,8 @@ export default async function SetupSensorPage({ params, searchParams }: { params
       )}
       <h3>Move to a payload</h3>
       <MountForm sensorId={sensor.id} payloads={sensor.payloads} />
+      <h2>Delete</h2>
+      <DeleteItemButton kind="sensor" id={sensor.id} name={sensor.serial} usedBy={usedBy} />
     </>
   );
 }
