@@ -60,9 +60,7 @@ export interface LayerInput {
   baseM: number;
   topM: number;
   strengthK: number | null;
-  meanTemperatureK: number;
   dryAdiabaticLapseRateKPerKm: number;
-  moistAdiabaticLapseRateKPerKm: number;
 }
 
 export interface SummaryInput {
@@ -116,14 +114,14 @@ export function saturatedAdiabatCurve(ascentLevels: readonly LevelInput[], topKm
   const path = ascentLevels.filter((l) => l.altitudeM / 1000 <= topKm + 1e-9);
   if (path.length < 2) return null;
   const measured = path.every((l) => typeof l.pressureHpa === "number" && Number.isFinite(l.pressureHpa) && l.pressureHpa > 0);
-  const pressureOf = (l: LevelInput): number => (measured ? (l.pressureHpa as number) : (standardAtmosphereAt(l.altitudeM)?.pressurePa ?? Number.NaN) / 100);
-  const startPressureHpa = pressureOf(start);
-  const temperaturesK = pseudoAdiabatTemperaturesK(start.temperatureK, startPressureHpa, path.map(pressureOf));
+  const pressuresHpa = path.map((l) => (measured ? (l.pressureHpa as number) : (standardAtmosphereAt(l.altitudeM)?.pressurePa ?? Number.NaN) / 100));
+  const startPressureHpa = pressuresHpa[0] as number;
+  const temperaturesK = pseudoAdiabatTemperaturesK(start.temperatureK, startPressureHpa, pressuresHpa);
   const points: ChartPoint[] = [];
   let previousPressureHpa = Number.POSITIVE_INFINITY;
   for (const [i, level] of path.entries()) {
     const temperatureC = (temperaturesK[i] as number) - KELVIN_AT_0_C;
-    const pressureHpa = pressureOf(level);
+    const pressureHpa = pressuresHpa[i] as number;
     // A pressure that fails to fall with height (sensor noise) has no place on a lifted parcel's path.
     if (!Number.isFinite(temperatureC) || !(pressureHpa < previousPressureHpa)) continue;
     if (temperatureC < minTemperatureC) break;

@@ -19,6 +19,7 @@ import type { Engine } from "../support/test-databases.ts";
 import { createTestDatabase } from "../support/test-databases.ts";
 import { writeSyntheticArchive } from "../../seed/synthetic-archive.ts";
 import { openLevelReader } from "../../lib/export/level-reader.ts";
+import { lapsebankNodeArgs } from "../support/lapsebank-command.ts";
 
 const FLIGHTS = Number(process.env.LAPSEBANK_BENCH_FLIGHTS ?? 10_000);
 
@@ -38,19 +39,11 @@ function peakRssKb(pid: number): number {
   }
 }
 
-/** The command `npm run lapsebank` runs (package.json), e.g. ["node", "lib/cli/launch.mjs"]. */
-function lapsebankScript(): string[] {
-  const scripts = (JSON.parse(fs.readFileSync("package.json", "utf8")) as { scripts: Record<string, string> }).scripts;
-  const words = (scripts.lapsebank ?? "").split(/\s+/).filter(Boolean);
-  if (words[0] !== "node") throw new Error(`expected the lapsebank script to start with node, found "${scripts.lapsebank}"`);
-  return words.slice(1);
-}
-
 /** Runs `lapsebank export …` as npm would (the package.json script, without npm's own process), sampling its peak RSS. */
 async function runExportCommand(databaseUrl: string, args: string[]): Promise<CommandRun> {
   const out = path.join(fs.mkdtempSync(path.join(os.tmpdir(), "lapsebank-bench-export-")), "export.out");
   const started = performance.now();
-  const child = spawn(process.execPath, [...lapsebankScript(), "export", ...args, "--out", out], {
+  const child = spawn(process.execPath, [...lapsebankNodeArgs(), "export", ...args, "--out", out], {
     env: { ...process.env, DATABASE_URL: databaseUrl },
     stdio: ["ignore", "pipe", "pipe"],
   });

@@ -14,6 +14,7 @@ import { createExport } from "../../lib/export/export.ts";
 import { LOCAL_VIEWER } from "../../lib/auth/visibility.ts";
 import { makeFlightFile, setUpSchool } from "../support/flight-files.ts";
 import { createTestDatabase, testEngines, type TestDatabase } from "../support/test-databases.ts";
+import { lapsebankNodeArgs } from "../support/lapsebank-command.ts";
 
 interface CommandResult {
   code: number | null;
@@ -21,16 +22,8 @@ interface CommandResult {
   stderr: string;
 }
 
-/** The command line of `npm run lapsebank` (package.json), without npm itself. */
-function lapsebankCommand(): string[] {
-  const scripts = (JSON.parse(fs.readFileSync("package.json", "utf8")) as { scripts: Record<string, string> }).scripts;
-  return (scripts.lapsebank ?? "").split(/\s+/).filter(Boolean);
-}
-
 function runCommand(databaseUrl: string, args: string[], env: Record<string, string> = {}): Promise<CommandResult> {
-  const [program, ...programArgs] = lapsebankCommand();
-  expect(program).toBe("node");
-  const child = spawn(process.execPath, [...programArgs, ...args], { env: { ...process.env, DATABASE_URL: databaseUrl, ...env }, stdio: ["ignore", "pipe", "pipe"] });
+  const child = spawn(process.execPath, [...lapsebankNodeArgs(), ...args], { env: { ...process.env, DATABASE_URL: databaseUrl, ...env }, stdio: ["ignore", "pipe", "pipe"] });
   let stdout = "";
   let stderr = "";
   child.stdout.on("data", (chunk) => (stdout += chunk));

@@ -12,8 +12,8 @@ function standardLevels(phase: "ascent" | "descent", topM: number): LevelInput[]
 }
 
 const troposphere: LayerInput = {
-  kind: "troposphere", phase: "ascent", baseM: 250, topM: 11000, strengthK: null, meanTemperatureK: 252.4,
-  dryAdiabaticLapseRateKPerKm: 9.77, moistAdiabaticLapseRateKPerKm: 7.5,
+  kind: "troposphere", phase: "ascent", baseM: 250, topM: 11000, strengthK: null,
+  dryAdiabaticLapseRateKPerKm: 9.77,
 };
 const inversion: LayerInput = { ...troposphere, kind: "surface-inversion", baseM: 100, topM: 400, strengthK: 2.34 };
 
