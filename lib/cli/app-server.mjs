@@ -15,6 +15,9 @@ import cluster from "node:cluster";
 import http from "node:http";
 import os from "node:os";
 
+// Nothing leaves a school's server: Next.js telemetry is off in every process this starts.
+process.env.NEXT_TELEMETRY_DISABLED = "1";
+
 const port = Number(process.env.PORT ?? 3000);
 const host = process.env.HOST || undefined;
 

@@ -10,6 +10,8 @@ import { loadDemoProgram } from "../../seed/load.ts";
  * app when there is no production build yet, then serve it on PORT (default 3000).
  */
 async function start(): Promise<void> {
+  // Nothing leaves a school's server: the build and the app processes inherit this.
+  process.env.NEXT_TELEMETRY_DISABLED = "1";
   const env = getEnv();
   console.log(`Database: ${redactUrl(env.DATABASE_URL)}`);
   applyMigrations(env.DATABASE_URL);

@@ -35,7 +35,7 @@ export default async function setup(project: TestProject): Promise<() => Promise
   const root = process.cwd();
   const tempDir = fs.mkdtempSync(path.join(os.tmpdir(), "lapsebank-e2e-"));
   const databaseUrl = `file:${path.join(tempDir, "e2e.db")}`;
-  const env: NodeJS.ProcessEnv = { ...process.env, DATABASE_URL: databaseUrl, NODE_ENV: "production" };
+  const env: NodeJS.ProcessEnv = { ...process.env, DATABASE_URL: databaseUrl, NODE_ENV: "production", NEXT_TELEMETRY_DISABLED: "1" };
   let server: ChildProcess | undefined;
 
   const teardown = async () => {
