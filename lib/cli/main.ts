@@ -5,6 +5,7 @@ import { applyMigrations, redactUrl } from "../db/migrate.ts";
 import { getEnv } from "../env.ts";
 import type { ReprocessSelection } from "../ingest/index.ts";
 import { EXPORT_HELP } from "./export-help.ts";
+import { readUploadFile } from "./read-upload-file.ts";
 import { z } from "zod";
 
 // Each command loads only the modules it needs (the database client, ingest pipeline, demo
@@ -114,7 +115,7 @@ async function runIngest(args: string[]): Promise<number> {
     const label = `[${index + 1}/${positionals.length}] ${file}`;
     let bytes: Uint8Array;
     try {
-      bytes = fs.readFileSync(file);
+      bytes = readUploadFile(file, getEnv().LAPSEBANK_MAX_UPLOAD_MB * 1048576);
     } catch (error) {
       console.error(`${label}: cannot read: ${(error as Error).message}`);
       failed++;
@@ -166,7 +167,7 @@ async function runRemoteIngest(files: string[], values: Record<string, string | 
     const label = `[${index + 1}/${files.length}] ${file}`;
     const form = new FormData();
     try {
-      form.set("file", new Blob([fs.readFileSync(file)]), path.basename(file));
+      form.set("file", new Blob([readUploadFile(file, getEnv().LAPSEBANK_MAX_UPLOAD_MB * 1048576)]), path.basename(file));
     } catch (error) {
       console.error(`${label}: cannot read: ${(error as Error).message}`);
       failed++;
