@@ -4,8 +4,8 @@
  * files. Everything is drawn from a seeded generator, so one seed always yields the
  * same bytes. All names and places are fictional; the physics is plausible, not data.
  */
+import { findLocalSunrise } from "../lib/analysis/launch-time.ts";
 import { DateTime } from "luxon";
-import SunCalc from "suncalc";
 import type { TemperatureCalibration } from "../lib/analysis/types.ts";
 import {
   DEMO_LAYOUTS,
@@ -336,7 +336,8 @@ export function generateDemoProgram(seed: number = DEFAULT_DEMO_SEED): DemoProgr
     const rng = root.fork(plan.seed);
     const site = plan.site;
     const localNoon = DateTime.fromObject({ year: plan.year, month: plan.month, day: plan.day, hour: 12 }, { zone: site.timeZone });
-    const sunriseMs = SunCalc.getTimes(localNoon.toJSDate(), site.latitudeDeg, site.longitudeDeg).sunrise.getTime();
+    // Demo sites lie well inside the polar circles, so every date has a sunrise; local noon stands in otherwise.
+    const sunriseMs = findLocalSunrise(localNoon, site.latitudeDeg, site.longitudeDeg).sunriseUtc?.getTime() ?? localNoon.toMillis();
     const latestMs = localNoon.set({ hour: 15, minute: 45 }).toMillis();
     const wantedMs = sunriseMs + hoursAfterSunriseFor(plan.slot, rng) * 3_600_000;
     // Short winter days: an afternoon launch that would fall after 15:45 moves into early afternoon.

@@ -1,5 +1,5 @@
 import { DateTime, IANAZone } from "luxon";
-import SunCalc from "suncalc";
+import { findLocalSunrise } from "@/lib/analysis/launch-time";
 import { describe, expect, test } from "vitest";
 import { generateDemoProgram, type DemoProgram } from "@/seed/demo-program";
 import { forwardTemperatureK } from "./forward-calibration";
@@ -26,7 +26,7 @@ function localLaunch(flight: Flight): DateTime {
 function hoursAfterSunrise(flight: Flight): number {
   const site = siteOf(flight);
   const noon = localLaunch(flight).set({ hour: 12, minute: 0 });
-  const sunriseMs = SunCalc.getTimes(noon.toJSDate(), site.latitudeDeg, site.longitudeDeg).sunrise.getTime();
+  const sunriseMs = findLocalSunrise(noon, site.latitudeDeg, site.longitudeDeg).sunriseUtc?.getTime() ?? Number.NaN;
   return (Date.parse(flight.launchAtUtc) - sunriseMs) / 3_600_000;
 }
 
