@@ -3,6 +3,7 @@
 import { cookies } from "next/headers";
 import { redirect } from "next/navigation";
 import { revalidatePath } from "next/cache";
+import { safeRedirectPath } from "@/lib/auth/safe-redirect";
 import { z } from "zod";
 import { acceptInvitation, AccountError, changePassword, createApiToken, createInvitation, createUser, revokeApiToken, roleSchema, SESSION_COOKIE, setMembershipRole, signIn, signInSchema, signOut, signUpSchema, tokenScopeSchema } from "@/lib/auth/accounts";
 import { can } from "@/lib/auth/permissions";
@@ -16,14 +17,6 @@ function fieldErrorsOf(error: z.ZodError): Record<string, string[]> {
   const out: Record<string, string[]> = {};
   for (const issue of error.issues) (out[issue.path.join(".") || "form"] ??= []).push(issue.message);
   return out;
-}
-
-/** A same-site path to go to after signing in; anything that could leave the site falls back. */
-function safeNext(value: FormDataEntryValue | null, fallback: string): string {
-  const next = typeof value === "string" ? value : "";
-  if (!next.startsWith("/") || next.startsWith("//") || next.includes("\\")) return fallback;
-  const resolved = new URL(next, "http://same.invalid");
-  return resolved.origin === "http://same.invalid" ? `${resolved.pathname}${resolved.search}` : fallback;
 }
 
 async function startSession(sessionSecret: string, expiresAt: Date) {
@@ -48,7 +41,7 @@ export async function signUpAction(_: FormState, formData: FormData): Promise<Fo
     if (error instanceof AccountError) return { ok: false, message: error.message };
     throw error;
   }
-  redirect(safeNext(formData.get("next"), "/account"));
+  redirect(safeRedirectPath(formData.get("next"), "/account"));
 }
 
 export async function signInAction(_: FormState, formData: FormData): Promise<FormState> {
@@ -61,7 +54,7 @@ export async function signInAction(_: FormState, formData: FormData): Promise<Fo
     if (error instanceof AccountError) return { ok: false, message: error.message };
     throw error;
   }
-  redirect(safeNext(formData.get("next"), "/flights"));
+  redirect(safeRedirectPath(formData.get("next"), "/flights"));
 }
 
 export async function signOutAction(): Promise<void> {

@@ -125,6 +125,22 @@ describe("sharing across schools on two app processes", () => {
     await visitor.context.close();
   });
 
+  test("a sign-in link cannot send the browser to another host (dot segments normalise to //host)", async () => {
+    const [one] = bases as [string, string];
+    const { context, page } = await newContext();
+    const requested: string[] = [];
+    page.on("request", (request) => requested.push(new URL(request.url()).host));
+    await page.goto(`${one}/account?next=${encodeURIComponent("/.//evil.example/phish")}`);
+    const form = page.getByRole("form", { name: "Sign in" });
+    await form.getByLabel("Email").fill("alice@example.org");
+    await form.getByLabel("Password").fill(PASSWORD);
+    await form.getByRole("button", { name: "Sign in" }).click();
+    await page.waitForURL(`${one}/flights`, { timeout: 20_000 });
+    expect(new URL(page.url()).host).toBe(new URL(one).host);
+    expect(requested).not.toContain("evil.example");
+    await context.close();
+  });
+
   test("failed logins are counted across both processes", async () => {
     const [one, two] = bases as [string, string];
     const target = "coordinator@example.org";
