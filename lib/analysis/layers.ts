@@ -24,7 +24,7 @@ const DRY_ADIABATIC_K_PER_KM = (STANDARD_GRAVITY_M_PER_S2 / DRY_AIR_SPECIFIC_HEA
  * Builds a LayerStat from the points of one layer: OLS lapse rate −dT/dz (K/km) with its
  * standard error and r², the Theil–Sen lapse rate, mean T, mean p (measured when every point has
  * a pressure, else USSA76 at the mean altitude), Γd = g0/cp and Γm at mean T and p (AMS Glossary),
- * and the stability class. Null when fewer than 2 points or no altitude spread.
+ * and the stability class. Null when fewer than 2 points, no altitude spread, or a non-finite lapse rate.
  */
 export function buildLayerStat(
   kind: LayerKind,
@@ -59,6 +59,9 @@ export function buildLayerStat(
   const meanPressureHpa = allPressure ? sumP / n : (standard?.pressureHpa ?? 1013.25);
   const lapseRateKPerKm = -fit.slope;
   const moist = moistAdiabaticLapseRateKPerKm(meanTemperatureK, meanPressureHpa);
+  const stability = classifyStability(lapseRateKPerKm, DRY_ADIABATIC_K_PER_KM, moist);
+  // A layer whose lapse rate or adiabat is not a number is no layer: never store NaN, never guess a class.
+  if (stability === null || !Number.isFinite(meanTemperatureK)) return null;
   return {
     kind,
     phase,
@@ -75,7 +78,7 @@ export function buildLayerStat(
     pressureFromStandardAtmosphere: !allPressure,
     dryAdiabaticLapseRateKPerKm: DRY_ADIABATIC_K_PER_KM,
     moistAdiabaticLapseRateKPerKm: moist,
-    stability: classifyStability(lapseRateKPerKm, DRY_ADIABATIC_K_PER_KM, moist),
+    stability,
   };
 }
 

@@ -1,5 +1,8 @@
 /** Straight-line fits for lapse rates: ordinary least squares and the Theil–Sen estimator. */
 
+/** Spread of x, in ulps of its largest magnitude, below which x counts as constant (2^12: far above round-off). */
+const X_SPREAD_ROUNDING_ULPS = 4096;
+
 export interface LinearFit {
   slope: number;
   intercept: number;
@@ -13,7 +16,9 @@ export interface LinearFit {
 /**
  * Ordinary least-squares line y = a + b·x with the textbook slope standard error
  * SE(b) = sqrt(SSres/(n − 2) / Sxx). Pairs with a non-finite coordinate are skipped.
- * Returns null when fewer than 2 usable points or x has no spread.
+ * Returns null when fewer than 2 usable points or x has no spread beyond rounding: when the x values' standard
+ * deviation is within a few thousand ulps of their magnitude, Sxx is round-off and a slope from it (with a
+ * standard error near 1e16) would be noise.
  */
 export function fitOrdinaryLeastSquares(x: ArrayLike<number>, y: ArrayLike<number>): LinearFit | null {
   const len = Math.min(x.length, y.length);
@@ -30,6 +35,7 @@ export function fitOrdinaryLeastSquares(x: ArrayLike<number>, y: ArrayLike<numbe
   }
   if (n < 2) return null;
   const meanX = sumX / n;
+  let maxAbsX = 0;
   const meanY = sumY / n;
   let sxx = 0;
   let sxy = 0;
@@ -40,11 +46,12 @@ export function fitOrdinaryLeastSquares(x: ArrayLike<number>, y: ArrayLike<numbe
     if (!Number.isFinite(xi) || !Number.isFinite(yi)) continue;
     const dx = xi - meanX;
     const dy = yi - meanY;
+    if (Math.abs(xi) > maxAbsX) maxAbsX = Math.abs(xi);
     sxx += dx * dx;
     sxy += dx * dy;
     syy += dy * dy;
   }
-  if (!(sxx > 0)) return null;
+  if (!(sxx > 0) || Math.sqrt(sxx / n) <= X_SPREAD_ROUNDING_ULPS * Number.EPSILON * maxAbsX) return null;
   const slope = sxy / sxx;
   const intercept = meanY - slope * meanX;
   const ssRes = Math.max(syy - slope * sxy, 0);

@@ -94,13 +94,14 @@ export function pseudoAdiabatTemperaturesK(startTemperatureK: number, startPress
  * Static-stability class from the environmental lapse rate Γe = −dT/dz (K/km) against Γd and Γm:
  * Γe ≤ Γm absolutely stable (inversions and isothermal layers included), Γm < Γe ≤ Γd conditionally
  * unstable, Γe > Γd absolutely unstable. Source: standard texts, e.g. FAA Aviation Weather Handbook
- * FAA-H-8083-28; the equality cases are assigned to the more stable class.
+ * FAA-H-8083-28; the equality cases are assigned to the more stable class. Null when any rate is not finite.
  */
 export function classifyStability(
   environmentalLapseRateKPerKm: number,
   dryAdiabaticKPerKm: number,
   moistAdiabaticKPerKm: number,
-): StabilityClass {
+): StabilityClass | null {
+  if (!Number.isFinite(environmentalLapseRateKPerKm) || !Number.isFinite(dryAdiabaticKPerKm) || !Number.isFinite(moistAdiabaticKPerKm)) return null;
   if (environmentalLapseRateKPerKm <= moistAdiabaticKPerKm) return "absolutely-stable";
   if (environmentalLapseRateKPerKm <= dryAdiabaticKPerKm) return "conditionally-unstable";
   return "absolutely-unstable";

@@ -14,7 +14,7 @@ const T_CDF_LIMIT = 1e150;
 /** P(T ≤ x) for Student's t with `df` degrees of freedom (normal when df is Infinity). */
 export function tCdf(x: number, df: number): number {
   assertDf(df);
-  if (df === Infinity) return jStat.normal.cdf(x, 0, 1);
+  if (df === Infinity) return normalCdf(x);
   // jstat squares x internally; beyond ~1e154 that overflows to NaN. At |x| = 1e150 the tail is
   // already below 1e-150 for any df ≥ 1, so clamping changes nothing that matters.
   const clamped = Math.max(-T_CDF_LIMIT, Math.min(T_CDF_LIMIT, x));
@@ -37,9 +37,43 @@ export function tCritical(level: number, df: number): number {
   return tQuantile(1 - (1 - level) / 2, df);
 }
 
-/** Standard normal P(Z ≤ z). */
+/**
+ * Standard normal P(Z ≤ z). Beyond |z| = 3 the smaller tail comes from `normalUpperTail`, because jstat
+ * computes 0.5·(1 + erf) and its erfc loses everything below about 1e-17 (P(Z ≤ −9) came out as 0).
+ */
 export function normalCdf(z: number): number {
+  if (Number.isNaN(z)) return Number.NaN;
+  if (z < -NORMAL_TAIL_FROM) return normalUpperTail(-z);
+  if (z > NORMAL_TAIL_FROM) return 1 - normalUpperTail(z);
   return jStat.normal.cdf(z, 0, 1);
+}
+
+const NORMAL_TAIL_FROM = 3;
+
+/**
+ * Upper tail Q(x) = P(Z > x) of the standard normal for x ≥ 3, without cancellation: Laplace's continued
+ * fraction Q(x) = φ(x) / (x + 1/(x + 2/(x + 3/(x + …)))) (Abramowitz & Stegun 1964, eq. 26.2.14),
+ * evaluated by the modified Lentz method (Press et al., Numerical Recipes, 3rd ed., §5.2). It converges in
+ * a few dozen terms for x ≥ 3 and keeps full relative precision down to the smallest doubles.
+ */
+export function normalUpperTail(x: number): number {
+  if (!(x >= NORMAL_TAIL_FROM)) return 1 - jStat.normal.cdf(x, 0, 1);
+  const tiny = 1e-300;
+  let fraction = x;
+  let c = x;
+  let d = 0;
+  for (let k = 1; k < 1000; k++) {
+    d = x + k * d;
+    if (d === 0) d = tiny;
+    c = x + k / c;
+    if (c === 0) c = tiny;
+    d = 1 / d;
+    const delta = c * d;
+    fraction *= delta;
+    if (Math.abs(delta - 1) < 1e-16) break;
+  }
+  // exp(−x²/2) underflows past x ≈ 38.6; the tail is then below the smallest double anyway.
+  return Math.exp(-0.5 * x * x) / Math.sqrt(2 * Math.PI) / fraction;
 }
 
 /** Standard normal quantile: the z with P(Z ≤ z) = p. */

@@ -80,6 +80,12 @@ describe("stability classes", () => {
   ] as const)("Γe = %f K/km with Γm = 4, Γd = 9.77 → %s", (gammaE, cls) => {
     expect(classifyStability(gammaE, 9.77, 4)).toBe(cls);
   });
+  test.each([[Number.NaN, 9.77, 4], [Number.POSITIVE_INFINITY, 9.77, 4], [6.5, 9.77, Number.NaN]])(
+    "a lapse rate or adiabat that is not a number gets no class (Γe = %f, Γd = %f, Γm = %f)",
+    (gammaE, gammaD, gammaM) => {
+      expect(classifyStability(gammaE, gammaD, gammaM)).toBeNull();
+    },
+  );
 });
 
 /**

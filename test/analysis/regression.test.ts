@@ -32,6 +32,16 @@ describe("ordinary least squares", () => {
     expect(fitOrdinaryLeastSquares([1], [1])).toBeNull();
     expect(fitOrdinaryLeastSquares([0, 1, 2], [4, 4, 4])?.rSquared).toBeNull();
   });
+  test("x values equal within rounding are no fit, not a slope with a 1e16 standard error", () => {
+    // [D] Levels at 1000 m whose altitudes differ only in the last bits (e.g. 1000 and 1000 + 1 ulp after a unit
+    // conversion) have no altitude spread to fit: Sxx is round-off, and a slope from it is meaningless.
+    const ulp = 1000 * Number.EPSILON;
+    expect(fitOrdinaryLeastSquares([1000, 1000 + ulp, 1000 - ulp, 1000], [280, 281, 279, 280])).toBeNull();
+    expect(fitOrdinaryLeastSquares([0.1 + 0.2, 0.3, 0.3], [1, 2, 3])).toBeNull();
+    // A real spread of a millimetre on a 30 km altitude still fits.
+    const fine = fitOrdinaryLeastSquares([30000, 30000.001, 30000.002], [220, 220.001, 220.002]);
+    expect(fine?.slope).toBeCloseTo(1, 3);
+  });
 });
 
 describe("selection and least squares helpers", () => {
