@@ -5,6 +5,7 @@ import type { AnalysisParameters, FlightAnalysis, TemperatureCalibration } from 
 import { fileIssue, IngestFailure, type IngestIssue } from "./errors.ts";
 import { temperatureInputOf, type LoggerLayoutSpec } from "./layout.ts";
 import { parseLoggerFile, type ParseMode } from "./parse.ts";
+import { launchTimeProblem } from "./time-bounds.ts";
 
 export interface SiteForAnalysis {
   latitudeDeg: number;
@@ -87,6 +88,10 @@ export async function prepareAnalysis(args: {
   const launchAtUtc = parsed.fileStartUtc
     ? new Date(parsed.fileStartUtc.getTime() + (analysis.summary.launchElapsedS ?? 0) * 1000)
     : (args.launchAtUtcHint as Date);
+  // The last gate before anything is stored: a launch time neither engine can read back (or no logger could
+  // have written) never reaches the database, whoever called.
+  const launchProblem = launchTimeProblem(launchAtUtc);
+  if (launchProblem) throw new IngestFailure("implausible-launch-time", [fileIssue(fileName, "implausible-launch-time", launchProblem)]);
   const launchTime = describeLaunchTime(launchAtUtc, args.site);
   return { analysis, launchAtUtc, launchTime, rowCount: parsed.dataRowCount, skippedRows: parsed.skippedRows };
 }

@@ -1,6 +1,7 @@
 import { z } from "zod";
 import type { AnalysisParameters, TemperatureCalibration } from "../analysis/types.ts";
 import { DEFAULT_ANALYSIS_PARAMETERS } from "../analysis/types.ts";
+import { launchTimeProblem } from "./time-bounds.ts";
 
 const finite = z.number().finite();
 const positive = finite.positive();
@@ -47,10 +48,34 @@ export const visibilitySchema = z.enum(["school", "program", "public"]);
 export type Visibility = z.infer<typeof visibilitySchema>;
 
 const optionalId = z.preprocess((v) => (v === "" || v === null ? undefined : v), z.string().min(1).max(64).optional());
-const optionalDate = z.preprocess(
-  (v) => (v === "" || v === null || v === undefined ? undefined : v),
-  z.coerce.date({ error: "Launch time must be an ISO 8601 date-time, e.g. 2025-07-14T06:30:00Z" }).optional(),
-);
+/** An ISO 8601 date-time that names its offset: `Z` or `±hh:mm` (a bare local time would be read in the server's zone). */
+const DATE_TIME_WITH_OFFSET = /^[+-]?\d{4,6}-\d{2}-\d{2}T\d{2}:\d{2}(:\d{2}(\.\d+)?)?(Z|[+-]\d{2}:?\d{2})$/i;
+
+/**
+ * A launch time typed with an upload (form, API, CLI): ISO 8601 with an explicit offset, within the plausible
+ * range of lib/ingest/time-bounds.ts. Date objects (from code) are checked for the range only.
+ */
+export const launchTimeInputSchema = z
+  .union([z.date(), z.string().trim()])
+  .superRefine((value, ctx) => {
+    if (typeof value === "string" && !DATE_TIME_WITH_OFFSET.test(value)) {
+      ctx.addIssue({
+        code: "custom",
+        message: `Launch time "${value.slice(0, 40)}" must be an ISO 8601 date-time with an offset, e.g. 2025-07-14T06:30:00Z or 2025-07-14T01:30:00-05:00 (a time without an offset would be read in the server's own zone)`,
+      });
+    }
+  })
+  .transform((value, ctx) => {
+    const date = value instanceof Date ? value : new Date(value);
+    const problem = launchTimeProblem(date);
+    if (problem) {
+      ctx.addIssue({ code: "custom", message: problem });
+      return z.NEVER;
+    }
+    return date;
+  });
+
+const optionalDate = z.preprocess((v) => (v === "" || v === null || v === undefined ? undefined : v), launchTimeInputSchema.optional());
 
 /** Metadata that accompanies an uploaded file (web form, API multipart fields, CLI options). */
 export const uploadMetadataSchema = z.object({
