@@ -90,7 +90,9 @@ export async function reprocessFlight(db: Db, flightId: string, options: { reaso
       isDeepStrictEqual(previous.layoutSpec, layout);
     if (sameInputs && !options.force) return { flightId, status: "up-to-date", runId: previous.id };
 
-    const mode = previous && previous.skippedRowCount > 0 ? "lenient" : "strict";
+    // The file is read the way it was when stored: a lenient upload (rows sorted or skipped) would fail
+    // for ever in strict mode.
+    const mode = flight.uploadMode === "lenient" ? "lenient" : "strict";
     const prepared = await prepareAnalysis({
       fileName, bytes: new Uint8Array(flight.rawFile.bytes), layout, calibration: calibration.spec, site: flight.site,
       parameters, mode, launchAtUtcHint: flight.launchAtUtc,

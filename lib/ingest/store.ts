@@ -142,7 +142,7 @@ export async function ingestFlightFile(db: Db, request: IngestRequest, options: 
             schoolId: meta.schoolId, siteId: site.id, layoutId: layoutRow.id, rawFileId: rawFile.id,
             payloadId: meta.payloadId ?? null, sensorId: meta.sensorId ?? null,
             title, notes: meta.notes ?? "", launchAtUtc: finalPrepared.launchAtUtc, visibility: meta.visibility,
-            synthetic: request.synthetic ?? false, createdById: actor.userId,
+            synthetic: request.synthetic ?? false, uploadMode: meta.mode, createdById: actor.userId,
           },
           select: { id: true },
         });

@@ -25,6 +25,28 @@ describe.each(testEngines())("reprocessing on %s", (engine) => {
   });
   afterAll(async () => database?.drop());
 
+  test("a flight stored in lenient mode (rows sorted, none skipped) is re-analysed in lenient mode, not stranded", async () => {
+    const db = database.db;
+    const text = makeFlightFile({ seed: 14 }).text.split("\n");
+    const header = text.findIndex((l) => l.startsWith("seconds"));
+    // Swap two data rows: time goes backwards once, which strict mode refuses and lenient mode sorts.
+    const [a, b] = [header + 5, header + 6];
+    [text[a], text[b]] = [text[b] as string, text[a] as string];
+    const stored = await ingestFlightFile(db, {
+      file: { name: "swapped.csv", bytes: new TextEncoder().encode(text.join("\n")) },
+      metadata: { schoolId: ids.school.id, siteId: ids.site.id, layoutId: ids.layout.id, sensorId: ids.sensor.id, launchAtUtc: "2024-08-01T06:00:00Z", mode: "lenient" },
+    });
+    try {
+      expect((await db.analysisRun.findFirstOrThrow({ where: { flightId: stored.flightId } })).skippedRowCount).toBe(0);
+      const again = await reprocessFlights(db, { flightIds: [stored.flightId] }, { reason: "test", force: true });
+      expect(again.outcomes.map((o) => o.status)).toEqual(["reprocessed"]);
+      expect(await db.analysisRun.count({ where: { flightId: stored.flightId, isCurrent: true } })).toBe(1);
+    } finally {
+      await db.flight.delete({ where: { id: stored.flightId } });
+      await db.rawFile.deleteMany({ where: { name: "swapped.csv" } });
+    }
+  });
+
   test("nothing changed: every flight is already up to date", async () => {
     const result = await reprocessFlights(database.db, { all: true }, { reason: "test" });
     expect(result.outcomes.map((o) => o.status)).toEqual(["up-to-date", "up-to-date", "up-to-date"]);
