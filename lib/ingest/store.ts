@@ -256,6 +256,11 @@ export async function writeAnalysisRun(
   },
 ): Promise<string> {
   const { analysis, launchTime } = args.prepared;
+  // Lock the flight's row first, so concurrent writers of runs for one flight take turns: the second one's
+  // "un-mark the current run" then sees the first one's new run. (A no-op UPDATE locks the row on
+  // PostgreSQL and takes the write lock on SQLite; the partial unique index "one current run per flight"
+  // refuses whatever slips past.)
+  await tx.$executeRaw`UPDATE "Flight" SET "deletedAt" = "deletedAt" WHERE "id" = ${args.flightId}`;
   await tx.analysisRun.updateMany({ where: { flightId: args.flightId, isCurrent: true }, data: { isCurrent: false } });
   await tx.flightSummary.updateMany({ where: { flightId: args.flightId, isCurrent: true }, data: { isCurrent: false } });
   const warnings = runWarnings(args.prepared);

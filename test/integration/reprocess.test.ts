@@ -124,4 +124,24 @@ describe.each(testEngines())("reprocessing on %s", (engine) => {
     // setUpSchool's sensor has τ = 1 s; the program's 3 s is only the fallback.
     expect((run.parameters as { lagCorrection: { timeConstantS: number } }).lagCorrection).toEqual({ enabled: true, timeConstantS: 1 });
   });
+
+  test("parallel re-analyses of one flight leave exactly one current run and one current summary", async () => {
+    const db = database.db;
+    const flightId = flightIds[2] as string;
+    const outcomes = await Promise.all(Array.from({ length: 4 }, (_, i) => reprocessFlights(db, { flightIds: [flightId] }, { reason: `parallel ${i}`, force: true })));
+    expect(outcomes.flatMap((o) => o.outcomes.map((x) => x.status))).toEqual(["reprocessed", "reprocessed", "reprocessed", "reprocessed"]);
+    expect(await db.analysisRun.count({ where: { flightId, isCurrent: true } })).toBe(1);
+    expect(await db.flightSummary.count({ where: { flightId, isCurrent: true } })).toBe(1);
+    const current = await db.analysisRun.findFirstOrThrow({ where: { flightId, isCurrent: true }, include: { summary: true } });
+    expect(current.summary?.isCurrent).toBe(true);
+  });
+
+  test("the database itself refuses a second current run for a flight", async () => {
+    const db = database.db;
+    const flightId = flightIds[2] as string;
+    const current = await db.analysisRun.findFirstOrThrow({ where: { flightId, isCurrent: true } });
+    const { id: _id, createdAt: _createdAt, ...copy } = current;
+    await expect(db.analysisRun.create({ data: { ...copy, parameters: copy.parameters ?? {}, calibrationSpec: copy.calibrationSpec ?? {}, layoutSpec: copy.layoutSpec ?? {}, warnings: copy.warnings ?? [], removedCounts: copy.removedCounts ?? {} } as never })).rejects.toThrow();
+    expect(await db.analysisRun.count({ where: { flightId, isCurrent: true } })).toBe(1);
+  });
 });
