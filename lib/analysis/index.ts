@@ -95,7 +95,7 @@ export function resolveAnalysisParameters(partial: Partial<AnalysisParameters> |
 function emptySummary(): FlightSummaryValues {
   return {
     launchElapsedS: null, burstElapsedS: null, landingElapsedS: null, launchAltitudeM: null, burstAltitudeM: null,
-    maxAltitudeM: null, surfaceTemperatureK: null, troposphericLapseRateKPerKm: null, troposphericLapseRateStdErrKPerKm: null,
+    maxAltitudeM: null, minAltitudeM: null, surfaceTemperatureK: null, troposphericLapseRateKPerKm: null, troposphericLapseRateStdErrKPerKm: null,
     tropopauseAltitudeM: null, tropopauseTemperatureK: null, tropopausePressureHpa: null, secondTropopauseAltitudeM: null,
     surfaceInversionDepthM: null, surfaceInversionStrengthK: null, hasSurfaceInversion: false,
     stratosphericLapseRateKPerKm: null, hasDescent: false, hasPressure: false, hasHumidity: false,
@@ -270,7 +270,11 @@ function analyse(input: FlightAnalysisInput): FlightAnalysis {
   const troposphere = ascent.layers.find((l) => l.kind === "troposphere");
   const stratosphere = ascent.layers.find((l) => l.kind === "stratosphere");
   let maxAltitudeM = -Infinity;
-  for (let i = launchIndex; i <= endIndex; i++) maxAltitudeM = Math.max(maxAltitudeM, series.altitudeM[i] as number);
+  let minAltitudeM = Infinity;
+  for (let i = launchIndex; i <= endIndex; i++) {
+    maxAltitudeM = Math.max(maxAltitudeM, series.altitudeM[i] as number);
+    minAltitudeM = Math.min(minAltitudeM, series.altitudeM[i] as number);
+  }
   const surface = surfacePoint(seriesView, launchIndex, burstIndex + 1, launchAltitudeM);
   const first: TropopauseResult = tropopause.first;
   const second: TropopauseResult = tropopause.second;
@@ -281,6 +285,7 @@ function analyse(input: FlightAnalysisInput): FlightAnalysis {
     launchAltitudeM,
     burstAltitudeM: series.altitudeM[burstIndex] as number,
     maxAltitudeM: nullable(maxAltitudeM),
+    minAltitudeM: nullable(minAltitudeM),
     surfaceTemperatureK: surface?.temperatureK ?? ascentLevels[0]?.temperatureK ?? null,
     troposphericLapseRateKPerKm: troposphere?.lapseRateKPerKm ?? null,
     troposphericLapseRateStdErrKPerKm: troposphere?.lapseRateStdErrKPerKm ?? null,

@@ -189,7 +189,7 @@ export interface PhaseLayers {
 
 /**
  * All layers of one phase: surface-based inversion, elevated inversions (below the first
- * tropopause when one was found), the troposphere from the top of the surface inversion (or the
+ * tropopause when one was found, below the candidate when it is undetermined), the troposphere from the top of the surface inversion (or the
  * ground) to the first tropopause (or the profile top, with a warning), the stratosphere above
  * the tropopause, and the fixed bands. `surface` is the near-ground observation (launch or
  * landing altitude and temperature), used as the lowest point when it lies below the first level.
@@ -219,8 +219,12 @@ export function computePhaseLayers(args: {
   for (const l of levels) points.push(l);
   const groundM = (points[0] as ProfilePoint).altitudeM;
   const tropopauseM = tropopause.status === "found" ? tropopause.altitudeM : null;
+  // Inversions are sought only in the troposphere: below a found tropopause, and below the candidate of
+  // an undetermined one (the air above it may be the stratosphere, whose warming is no inversion layer).
+  const inversionCeilingM =
+    tropopauseM ?? (tropopause.status === "undetermined" && tropopause.candidateAltitudeM !== null ? tropopause.candidateAltitudeM : null);
 
-  const inversionPoints = tropopauseM === null ? points : points.filter((p) => p.altitudeM <= tropopauseM);
+  const inversionPoints = inversionCeilingM === null ? points : points.filter((p) => p.altitudeM <= inversionCeilingM);
   const inversions = detectInversions(inversionPoints, args.inversionMergeGapM, args.inversionMinStrengthK);
   let surfaceInversion: PhaseLayers["surfaceInversion"] = null;
   let troposphereBaseM = groundM;

@@ -64,33 +64,70 @@ function interpolateAt(pr: Profile, altitudeM: number): { temperatureK: number; 
   return { temperatureK: t0 + f * (t1 - t0), pressureHpa };
 }
 
+/** Levels a and a + 1 are further apart than a data gap (more than two empty bins). */
+function isGap(pr: Profile, a: number): boolean {
+  return (pr.z[a + 1] as number) - (pr.z[a] as number) > pr.maxSpacingM;
+}
+
+function gapText(pr: Profile, a: number): string {
+  return `${Math.round(pr.z[a] as number)} m to ${Math.round(pr.z[a + 1] as number)} m`;
+}
+
+/**
+ * True when the tropopause could lie inside the gap between levels a and a + 1. The air above the
+ * gap decides [P]: if the mean lapse rate from the gap's top to the highest level within 2 km above
+ * it is 2 K/km or less, the air there is already stratospheric and the fall to 2 K/km may have
+ * happened inside the gap; if it is steeper, the levels above the gap are tropospheric and no
+ * tropopause lies below them. With no level above the gap's top, nothing rules it out.
+ */
+function gapMayHideTropopause(pr: Profile, a: number): boolean {
+  const n = pr.z.length;
+  const b = a + 1;
+  const limitM = (pr.z[b] as number) + WINDOW_M;
+  let highest = -1;
+  for (let j = b + 1; j < n && (pr.z[j] as number) <= limitM; j++) highest = j;
+  return highest < 0 || lapse(pr, b, highest) <= TROPOPAUSE_LAPSE_K_PER_KM;
+}
+
 /**
  * Lowest level k ≥ startIndex (and at or above floorM) meeting the 2 K/km rule. Every pair
  * (k, j) with z_j within 2 km above z_k is tested, not only the 2 km mean [P]. The reported
  * altitude interpolates the 2 K/km crossing between the mid-points of the layers below and above
- * level k.
+ * level k. Gaps (more than two empty bins) are no evidence either way: measured levels beyond a
+ * gap still reject a candidate; a candidate is found only when its whole 2 km window is measured;
+ * a gap that may hide a lower tropopause makes the answer undetermined.
  */
 function searchWmo(pr: Profile, startIndex: number, floorM: number): Search {
   const n = pr.z.length;
   const top = pr.z[n - 1] as number;
   for (let k = Math.max(startIndex, 0); k + 1 < n; k++) {
     const zk = pr.z[k] as number;
+    if (k > startIndex && isGap(pr, k - 1) && zk > floorM && gapMayHideTropopause(pr, k - 1)) {
+      return {
+        status: "undetermined",
+        reason: `a data gap from ${gapText(pr, k - 1)} may hide where the lapse rate fell to 2 K/km`,
+        candidateAltitudeM: zk,
+      };
+    }
     if (zk < floorM) continue;
-    if (lapse(pr, k, k + 1) > TROPOPAUSE_LAPSE_K_PER_KM) continue;
+    if (isGap(pr, k) || lapse(pr, k, k + 1) > TROPOPAUSE_LAPSE_K_PER_KM) continue;
     const windowTop = zk + WINDOW_M;
     let rejected = false;
     let gap: string | null = null;
     for (let j = k + 1; j < n && (pr.z[j] as number) <= windowTop; j++) {
-      if ((pr.z[j] as number) - (pr.z[j - 1] as number) > pr.maxSpacingM) {
-        gap = `a data gap from ${Math.round(pr.z[j - 1] as number)} m to ${Math.round(pr.z[j] as number)} m lies within 2 km above the candidate`;
-        break;
-      }
       if (lapse(pr, k, j) > TROPOPAUSE_LAPSE_K_PER_KM) {
         rejected = true;
         break;
       }
     }
     if (rejected) continue;
+    // Coverage of the window: a gap anywhere in it, including one that straddles its top.
+    for (let a = k; a + 1 < n && (pr.z[a] as number) < windowTop - pr.binM; a++) {
+      if (isGap(pr, a)) {
+        gap = `a data gap from ${gapText(pr, a)} lies within 2 km above the candidate`;
+        break;
+      }
+    }
     if (gap !== null) return { status: "undetermined", reason: gap, candidateAltitudeM: zk };
     if (top < windowTop - pr.binM) {
       return {
@@ -98,9 +135,6 @@ function searchWmo(pr: Profile, startIndex: number, floorM: number): Search {
         reason: `the profile ends at ${Math.round(top)} m, inside the 2 km test window above the candidate at ${Math.round(zk)} m`,
         candidateAltitudeM: zk,
       };
-    }
-    if (k > 0 && zk - (pr.z[k - 1] as number) > pr.maxSpacingM) {
-      return { status: "undetermined", reason: `a data gap below the candidate at ${Math.round(zk)} m hides where the lapse rate fell`, candidateAltitudeM: zk };
     }
     let altitudeM = zk;
     if (k > 0) {
@@ -118,6 +152,25 @@ function searchWmo(pr: Profile, startIndex: number, floorM: number): Search {
   return { status: "not-found" };
 }
 
+/**
+ * Whether the mean lapse rate from level i to every higher level within 1 km exceeds 3 K/km
+ * (the WMO condition for looking for a second tropopause): "yes" only when that 1 km is measured
+ * without a gap; "unknown" when a gap leaves it open. Callers stop before the profile top.
+ */
+function steepLayerAbove(pr: Profile, i: number): "yes" | "no" | "unknown" {
+  const n = pr.z.length;
+  const zi = pr.z[i] as number;
+  const layerTop = zi + SEPARATION_WINDOW_M;
+  let any = false;
+  for (let j = i + 1; j < n && (pr.z[j] as number) <= layerTop; j++) {
+    any = true;
+    if (lapse(pr, i, j) <= SECOND_TROPOPAUSE_SEPARATION_K_PER_KM) return "no";
+  }
+  if (!any) return "unknown";
+  for (let a = i; a + 1 < n && (pr.z[a] as number) < layerTop - pr.binM; a++) if (isGap(pr, a)) return "unknown";
+  return "yes";
+}
+
 function publicResult(s: Search): TropopauseResult {
   if (s.status === "found") return { status: "found", altitudeM: s.altitudeM, temperatureK: s.temperatureK, pressureHpa: s.pressureHpa };
   return s;
@@ -127,7 +180,9 @@ function publicResult(s: Search): TropopauseResult {
  * First and second WMO lapse-rate tropopause of one profile (levels in any order; altitudes in
  * m, temperatures in K). Only levels at or above floorM are searched so that surface inversions
  * are not taken for a tropopause [P]. "undetermined" when a data gap (more than two empty bins)
- * or the profile top falls inside the test window of the lowest candidate.
+ * or the profile top leaves the test window of the lowest unrejected candidate open, or a gap may
+ * hide a lower tropopause; the second tropopause is "undetermined" when a gap leaves the 1 km
+ * steep-layer test open and no measured layer settles it.
  */
 export function findTropopauses(
   levels: readonly ProfileLevel[],
@@ -145,18 +200,17 @@ export function findTropopauses(
     return { first: publicResult(first), second };
   }
   const top = pr.z[n - 1] as number;
+  let openLayer: string | null = null;
   for (let i = first.index + 1; i + 1 < n; i++) {
-    const zi = pr.z[i] as number;
-    if (top < zi + SEPARATION_WINDOW_M - pr.binM) break;
-    let exceeds = true;
-    for (let j = i + 1; j < n && (pr.z[j] as number) <= zi + SEPARATION_WINDOW_M; j++) {
-      if ((pr.z[j] as number) - (pr.z[j - 1] as number) > pr.maxSpacingM || lapse(pr, i, j) <= SECOND_TROPOPAUSE_SEPARATION_K_PER_KM) {
-        exceeds = false;
-        break;
-      }
+    if (top < (pr.z[i] as number) + SEPARATION_WINDOW_M - pr.binM) break;
+    const steep = steepLayerAbove(pr, i);
+    if (steep === "unknown") {
+      openLayer ??= `the 1 km above ${Math.round(pr.z[i] as number)} m is not fully measured, so a second tropopause cannot be ruled out`;
+      continue;
     }
-    if (!exceeds) continue;
+    if (steep === "no") continue;
     return { first: publicResult(first), second: publicResult(searchWmo(pr, i + 1, floorM)) };
   }
-  return { first: publicResult(first), second: { status: "not-found" } };
+  const second: TropopauseResult = openLayer === null ? { status: "not-found" } : { status: "undetermined", reason: openLayer, candidateAltitudeM: null };
+  return { first: publicResult(first), second };
 }

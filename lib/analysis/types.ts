@@ -210,6 +210,8 @@ export interface FlightSummaryValues {
   launchAltitudeM: number | null;
   burstAltitudeM: number | null;
   maxAltitudeM: number | null;
+  /** Lowest measured altitude from launch to the end of the record (not the lowest bin's base). */
+  minAltitudeM: number | null;
   surfaceTemperatureK: number | null;
   troposphericLapseRateKPerKm: number | null;
   troposphericLapseRateStdErrKPerKm: number | null;

@@ -300,7 +300,6 @@ export async function writeAnalysisRun(
     })),
   });
   const s = analysis.summary;
-  const ascentLevels = analysis.levels.filter((l) => l.phase === "ascent");
   const qcFlagged = analysis.qc.flags.some((f) => !INFORMATIONAL_FLAGS.has(f)) || args.prepared.skippedRows.length > 0;
   await tx.flightSummary.create({
     data: {
@@ -310,7 +309,7 @@ export async function writeAnalysisRun(
       hoursAfterSunrise: finiteOrNull(launchTime.hoursAfterSunrise), solarElevationDeg: launchTime.solarElevationDeg,
       latitudeDeg: args.latitudeDeg,
       launchAltitudeM: finiteOrNull(s.launchAltitudeM), burstAltitudeM: finiteOrNull(s.burstAltitudeM), maxAltitudeM: finiteOrNull(s.maxAltitudeM),
-      minAltitudeM: finiteOrNull(ascentLevels[0]?.baseM),
+      minAltitudeM: finiteOrNull(s.minAltitudeM),
       surfaceTemperatureK: finiteOrNull(s.surfaceTemperatureK),
       troposphericLapseRateKPerKm: finiteOrNull(s.troposphericLapseRateKPerKm),
       troposphericLapseRateStdErrKPerKm: finiteOrNull(s.troposphericLapseRateStdErrKPerKm),

@@ -183,3 +183,15 @@ describe("row order", () => {
     expect(a.samples.some((s) => s.temperatureK === 999)).toBe(false);
   });
 });
+
+describe("lowest measured altitude", () => {
+  test("minAltitudeM is the lowest altitude measured after launch, not the base of the lowest bin", () => {
+    // [D] ground at 1,637 m: the lowest 100 m bin starts at 1,600 m, but nothing was measured below 1,637 m
+    const samples = syntheticFlight({ temperatureAtAltitudeK: (z) => 288.15 - 0.0065 * z, groundM: 1637, topM: 12000, descentRateMPerS: 0 });
+    const a = run(samples, 1637);
+    expect(a.ok).toBe(true);
+    const measured = samples.map((x) => x.altitudeM).filter((z): z is number => z !== null && Number.isFinite(z));
+    expect(a.summary.minAltitudeM).toBeCloseTo(Math.min(...measured), 6);
+    expect(a.summary.minAltitudeM).toBeGreaterThanOrEqual(1637);
+  });
+});

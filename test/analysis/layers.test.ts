@@ -87,4 +87,18 @@ describe("phase layers", () => {
     expect(res.warnings.map((w) => w.code)).toContain("troposphere-to-top");
     expect(res.layers.find((l) => l.kind === "troposphere")?.topM).toBeCloseTo(7950, 6);
   });
+
+  test("an undetermined tropopause: the warming stratosphere above the candidate is not an elevated inversion", () => {
+    // [D] 6.5 K/km to 11 km, then warming at 2 K/km to 20 km (a stratosphere, not an inversion layer);
+    // the tropopause search is undetermined (a gap in its window), candidate at 11 km.
+    const f = piecewiseProfile([[0, 288.15], [11000, 216.65], [20000, 234.65]]);
+    const res = computePhaseLayers({
+      phase: "ascent", levels: levelsFromProfile(f, 0, 20000), surface: null,
+      tropopause: { status: "undetermined", reason: "a data gap", candidateAltitudeM: 11000 },
+      fixedBandsM: [], binSizeM: 100, inversionMergeGapM: 100, inversionMinStrengthK: 0.3,
+    });
+    expect(res.layers.filter((l) => l.kind === "elevated-inversion")).toEqual([]);
+    expect(res.layers.filter((l) => l.kind === "stratosphere")).toEqual([]);
+    expect(res.layers.find((l) => l.kind === "troposphere")?.lapseRateKPerKm).toBeCloseTo(6.5, 6);
+  });
 });

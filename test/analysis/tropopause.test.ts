@@ -61,3 +61,66 @@ describe("WMO lapse-rate tropopause (REFERENCE.md §2)", () => {
     expect(findTropopauses([], 5000).first.status).toBe("not-found");
   });
 });
+
+/**
+ * Data gaps (logger dropouts) in the WMO search: a gap is never evidence for either answer; levels on
+ * both sides of it are. Profiles are generated [D]; the expected outcomes follow from the WMO rule as
+ * stated in REFERENCE.md §2, plus the stated assumption that no inversion hides inside a gap [P].
+ */
+describe("WMO tropopause across data gaps (REFERENCE.md §2)", () => {
+  const without = (levels: ReturnType<typeof levelsFromProfile>, fromM: number, toM: number) =>
+    levels.filter((l) => l.altitudeM < fromM || l.altitudeM > toM);
+
+  test("1. levels after a gap reject a low candidate, so the search goes on to the real tropopause", () => {
+    // [D] 6.5 K/km, a thin isothermal layer 6.0–6.4 km, 6.5 K/km again to 11 km, isothermal to 20 km
+    const f = piecewiseProfile([[0, 288.15], [6000, 249.15], [6400, 249.15], [11000, 219.25], [20000, 219.25]]);
+    const complete = findTropopauses(levelsFromProfile(f, 0, 20000), 5000).first;
+    expect(complete.status === "found" && Math.abs(complete.altitudeM - 11000) < 100).toBe(true);
+    const gapped = findTropopauses(without(levelsFromProfile(f, 0, 20000), 6500, 7100), 5000).first;
+    if (gapped.status !== "found") throw new Error(`expected found, got ${gapped.status}`);
+    expect(gapped.altitudeM).toBeCloseTo(complete.status === "found" ? complete.altitudeM : 0, 6);
+  });
+
+  test("2. a second tropopause needs levels in the 1 km above: a gap over 1 km is no evidence of a steep layer", () => {
+    // [D] 6.5 K/km to 11 km, isothermal, a 1 K step (5 K/km) at 14.6–14.8 km, isothermal to 22 km; levels
+    // 13.2–14.6 km missing. Nothing measured shows a layer steeper than 3 K/km over 1 km above the first.
+    const f = piecewiseProfile([[0, 288.15], [11000, 216.65], [14600, 216.65], [14800, 215.65], [22000, 215.65]]);
+    const levels = without(levelsFromProfile(f, 0, 22000), 13200, 14600);
+    const { first, second } = findTropopauses(levels, 5000);
+    expect(first.status === "found" && Math.abs(first.altitudeM - 11000) < 100).toBe(true);
+    expect(second.status).not.toBe("found");
+    expect(findTropopauses(levelsFromProfile(f, 0, 22000), 5000).second.status).toBe("not-found");
+  });
+
+  test("3. a gap that starts inside the 2 km window and ends above it leaves the candidate undetermined", () => {
+    const levels = without(levelsFromProfile(standardAtmosphereTemperatureK, 0, 20000), 12600, 13600);
+    const { first } = findTropopauses(levels, 5000);
+    expect(first.status).toBe("undetermined");
+    if (first.status === "undetermined") {
+      expect(first.reason).toMatch(/gap/);
+      expect(Math.abs((first.candidateAltitudeM ?? 0) - 11050)).toBeLessThan(100);
+    }
+  });
+
+  test("4. a gap below the candidate that may hide the tropopause is noticed even when a level lies between", () => {
+    // [D] 6.5 K/km to 10.8 km (tropopause), isothermal to 11.3 km, 5 K/km to 11.5 km, isothermal to 20 km;
+    // levels 10.5–11.3 km are missing, so the first level above the gap (11.35 km) is not a candidate.
+    const t0 = 288.15 - 6.5 * 10.8;
+    const f = piecewiseProfile([[0, 288.15], [10800, t0], [11300, t0], [11500, t0 - 1], [20000, t0 - 1]]);
+    const levels = without(levelsFromProfile(f, 0, 20000), 10500, 11300);
+    const { first } = findTropopauses(levels, 5000);
+    expect(first.status).toBe("undetermined");
+    if (first.status === "undetermined") expect(first.reason).toMatch(/gap/);
+  });
+
+  test("a gap in the troposphere that the levels above rule out does not stop the search", () => {
+    const levels = without(levelsFromProfile(standardAtmosphereTemperatureK, 0, 20000), 7000, 8500);
+    const { first } = findTropopauses(levels, 5000);
+    expect(first.status === "found" && Math.abs(first.altitudeM - 11019) < 100).toBe(true); // REFERENCE.md §2 [D]
+  });
+
+  test("a gap straddling the tropopause itself stays undetermined", () => {
+    const levels = without(levelsFromProfile(standardAtmosphereTemperatureK, 0, 20000), 10500, 11800);
+    expect(findTropopauses(levels, 5000).first.status).toBe("undetermined");
+  });
+});
