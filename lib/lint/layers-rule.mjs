@@ -1,0 +1,98 @@
+/**
+ * ESLint rule "lapsebank/layers": which part of the tree may import which. One table, read by the rule and
+ * printed in DEVELOPERS.md. A layer is the first matching prefix of a file's path from the repository root.
+ * Only imports that resolve inside the repository are checked (relative and "@/" paths); npm packages and
+ * Node built-ins are the purity test's concern (test/analysis/purity.test.ts).
+ */
+import { dirname, relative, resolve } from "node:path";
+import { fileURLToPath } from "node:url";
+
+const ROOT = resolve(dirname(fileURLToPath(import.meta.url)), "..", "..");
+
+/** Layer → the layers it may import (itself always allowed). `names` limits an edge to the listed exports. */
+export const LAYERS = {
+  "lib/analysis": [],
+  "lib/stats": [],
+  "lib/env": [],
+  "lib/lint": [],
+  "lib/db": ["lib/env"],
+  "lib/auth": ["lib/db", "lib/env"],
+  "lib/ingest": ["lib/analysis", "lib/db", "lib/auth", "lib/env"],
+  "lib/query": ["lib/db", "lib/auth", "lib/analysis", "lib/stats", "lib/env"],
+  "lib/export": ["lib/db", "lib/auth", "lib/query", "lib/analysis", "lib/stats", "lib/env", "package.json"],
+  "lib/cli": ["lib/analysis", "lib/stats", "lib/env", "lib/db", "lib/auth", "lib/ingest", "lib/query", "lib/export", "seed", "package.json"],
+  seed: ["lib/analysis", "lib/db", "lib/ingest", "lib/env"],
+  app: [
+    "lib/query", "lib/ingest", "lib/export", "lib/auth", "lib/analysis", "lib/stats", "lib/env",
+    { layer: "lib/db", names: ["getDb", "getDbHandle"], why: "pages and routes get the database handle and pass it on; queries live in lib/query" },
+  ],
+};
+
+const ORDER = Object.keys(LAYERS).sort((a, b) => b.length - a.length);
+
+export function layerOf(pathFromRoot) {
+  const p = pathFromRoot.split("\\").join("/");
+  for (const layer of ORDER) if (p === layer || p.startsWith(`${layer}/`) || p.startsWith(`${layer}.`)) return layer;
+  return null;
+}
+
+function targetPath(fileName, specifier) {
+  if (specifier.startsWith("@/")) return relative(ROOT, resolve(ROOT, specifier.slice(2)));
+  if (specifier.startsWith(".")) return relative(ROOT, resolve(dirname(fileName), specifier));
+  return null;
+}
+
+export const layersRule = {
+  meta: {
+    type: "problem",
+    docs: { description: "Imports follow the one-way flow between Lapsebank's layers (lib/lint/layers-rule.mjs)" },
+    schema: [],
+    messages: {
+      forbidden: "{{from}} may not import {{to}} ({{specifier}}). Allowed from {{from}}: {{allowed}}. See DEVELOPERS.md \"Layers\".",
+      names: "{{from}} may import only {{names}} from {{to}} ({{why}}); found {{found}}.",
+    },
+  },
+  create(context) {
+    const fileName = context.filename ?? context.getFilename();
+    const fromPath = relative(ROOT, fileName);
+    const from = layerOf(fromPath);
+    if (from === null) return {};
+    const rules = LAYERS[from];
+
+    function check(node, specifier, importedNames) {
+      if (typeof specifier !== "string") return;
+      const target = targetPath(fileName, specifier);
+      if (target === null || target.startsWith("..")) return;
+      const to = layerOf(target);
+      if (to === null || to === from) return;
+      const edge = rules.find((r) => (typeof r === "string" ? r : r.layer) === to);
+      if (edge === undefined) {
+        const allowed = rules.map((r) => (typeof r === "string" ? r : `${r.layer} (${r.names.join(", ")})`)).join(", ") || "nothing outside itself";
+        context.report({ node, messageId: "forbidden", data: { from, to, specifier, allowed } });
+        return;
+      }
+      if (typeof edge !== "string") {
+        const extra = importedNames === null ? ["*"] : importedNames.filter((n) => !edge.names.includes(n));
+        if (extra.length > 0) context.report({ node, messageId: "names", data: { from, to, names: edge.names.join(", "), why: edge.why, found: extra.join(", ") } });
+      }
+    }
+
+    const valueNames = (node) => {
+      if (node.importKind === "type") return [];
+      const names = [];
+      for (const s of node.specifiers ?? []) {
+        if (s.type === "ImportNamespaceSpecifier" || s.type === "ImportDefaultSpecifier") return null;
+        if (s.importKind === "type") continue;
+        names.push(s.imported?.name ?? s.imported?.value);
+      }
+      return names;
+    };
+
+    return {
+      ImportDeclaration: (node) => check(node, node.source.value, valueNames(node)),
+      ExportNamedDeclaration: (node) => node.source && check(node, node.source.value, node.exportKind === "type" ? [] : null),
+      ExportAllDeclaration: (node) => check(node, node.source.value, node.exportKind === "type" ? [] : null),
+      ImportExpression: (node) => node.source.type === "Literal" && check(node, node.source.value, null),
+    };
+  },
+};
