@@ -8,8 +8,8 @@
  * (V = counts·Vref/2^N or /(2^N − 1)).
  */
 import type { AdcSpec, TemperatureCalibration, ThermistorEquation } from "../lib/analysis/types.ts";
+import { kelvinToCelsius } from "../lib/analysis/units.ts";
 
-const CELSIUS_OFFSET_K = 273.15;
 
 /** Resistance (Ω) at which the thermistor equation gives temperatureK. */
 export function thermistorResistanceOhm(equation: ThermistorEquation, temperatureK: number): number {
@@ -69,9 +69,9 @@ export function rawReadingForTemperature(calibration: TemperatureCalibration, te
       case "kelvin":
         return sensorTemperatureK;
       case "celsius":
-        return sensorTemperatureK - CELSIUS_OFFSET_K;
+        return kelvinToCelsius(sensorTemperatureK);
       case "fahrenheit":
-        return ((sensorTemperatureK - CELSIUS_OFFSET_K) * 9) / 5 + 32;
+        return ((kelvinToCelsius(sensorTemperatureK)) * 9) / 5 + 32;
       default:
         throw new Error(`direct calibration cannot read input "${calibration.input}"`);
     }

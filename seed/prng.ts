@@ -1,10 +1,12 @@
 /**
  * Small seeded pseudo-random source for the demo generator.
  *
- * mulberry32 (a 32-bit state generator in the public domain) for uniforms and the
+ * Uniforms from the project's one generator (mulberry32 in lib/stats/random.ts) and the
  * Box–Muller transform for normal deviates. Deterministic across platforms because it
  * only uses 32-bit integer arithmetic and Math.log/sqrt/cos.
  */
+import { mulberry32 } from "../lib/stats/random.ts";
+
 export interface Prng {
   /** Uniform in [0, 1). */
   next(): number;
@@ -35,16 +37,9 @@ export function mixSeed(a: number, b: number): number {
 
 export function createPrng(seed: number): Prng {
   const rootSeed = seed >>> 0;
-  let state = rootSeed;
   let spareNormal: number | null = null;
 
-  const next = (): number => {
-    state = (state + 0x6d2b79f5) >>> 0;
-    let t = state;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
+  const next = mulberry32(rootSeed);
 
   const standardNormal = (): number => {
     if (spareNormal !== null) {

@@ -3,11 +3,9 @@
  * (K, m, hPa); the UI shows °C and km with the unit beside every number.
  */
 
-const KELVIN_AT_0_C = 273.15;
+import { kelvinToCelsius } from "@/lib/analysis/units";
 
-export function kelvinToCelsius(temperatureK: number): number {
-  return temperatureK - KELVIN_AT_0_C;
-}
+export { kelvinToCelsius };
 
 function fixed(value: number, digits: number): string {
   // Avoid "-0.0" for values that round to zero.

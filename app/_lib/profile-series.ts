@@ -4,6 +4,7 @@
  */
 import { moistAdiabaticLapseRateKPerKm, pseudoAdiabatTemperaturesK } from "@/lib/analysis/stability";
 import { standardAtmosphereAt } from "@/lib/analysis/standard-atmosphere";
+import { kelvinToCelsius } from "@/lib/analysis/units";
 
 export interface ChartPoint {
   temperatureC: number;
@@ -68,7 +69,6 @@ export interface SummaryInput {
   secondTropopauseAltitudeM: number | null;
 }
 
-const KELVIN_AT_0_C = 273.15;
 
 /** Evenly spaced ticks from `min` to `max` (both on the step grid) with a round step giving at most ~10 ticks. */
 export function niceTicks(min: number, max: number, steps: readonly number[]): number[] {
@@ -120,7 +120,7 @@ export function saturatedAdiabatCurve(ascentLevels: readonly LevelInput[], topKm
   const points: ChartPoint[] = [];
   let previousPressureHpa = Number.POSITIVE_INFINITY;
   for (const [i, level] of path.entries()) {
-    const temperatureC = (temperaturesK[i] as number) - KELVIN_AT_0_C;
+    const temperatureC = kelvinToCelsius(temperaturesK[i] as number);
     const pressureHpa = pressuresHpa[i] as number;
     // A pressure that fails to fall with height (sensor noise) has no place on a lifted parcel's path.
     if (!Number.isFinite(temperatureC) || !(pressureHpa < previousPressureHpa)) continue;
@@ -138,7 +138,7 @@ export function saturatedAdiabatCurve(ascentLevels: readonly LevelInput[], topKm
 
 /** Builds the chart data; every number is finite (non-finite inputs are dropped). */
 export function buildProfileChartData(levels: readonly LevelInput[], layers: readonly LayerInput[], summary: SummaryInput | null): ProfileChartData {
-  const toPoint = (l: LevelInput): ChartPoint => ({ temperatureC: round(l.temperatureK - KELVIN_AT_0_C, 3), altitudeKm: round(l.altitudeM / 1000, 4) });
+  const toPoint = (l: LevelInput): ChartPoint => ({ temperatureC: round(kelvinToCelsius(l.temperatureK), 3), altitudeKm: round(l.altitudeM / 1000, 4) });
   const usable = levels.filter((l) => Number.isFinite(l.altitudeM) && Number.isFinite(l.temperatureK));
   const ascentLevels = usable.filter((l) => l.phase === "ascent").sort((a, b) => a.altitudeM - b.altitudeM);
   const ascent = ascentLevels.map(toPoint);

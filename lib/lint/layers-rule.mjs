@@ -21,7 +21,7 @@ export const LAYERS = {
   "lib/query": ["lib/db", "lib/auth", "lib/analysis", "lib/stats", "lib/env"],
   "lib/export": ["lib/db", "lib/auth", "lib/query", "lib/analysis", "lib/stats", "lib/env", "package.json"],
   "lib/cli": ["lib/analysis", "lib/stats", "lib/env", "lib/db", "lib/auth", "lib/ingest", "lib/query", "lib/export", "seed", "package.json"],
-  seed: ["lib/analysis", "lib/db", "lib/ingest", "lib/env"],
+  seed: ["lib/analysis", "lib/stats", "lib/db", "lib/ingest", "lib/env"],
   app: [
     "lib/query", "lib/ingest", "lib/export", "lib/auth", "lib/analysis", "lib/stats", "lib/env",
     { layer: "lib/db", names: ["getDb", "getDbHandle"], why: "pages and routes get the database handle and pass it on; queries live in lib/query" },

@@ -5,17 +5,11 @@
  */
 import type { ProfileLevel, RawSample, SiteInfo, TemperatureCalibration } from "../../lib/analysis/types";
 import { standardAtmosphereAt } from "../../lib/analysis/standard-atmosphere";
+import { mulberry32 } from "../../lib/stats/random";
 
-/** Mulberry32: a small seeded PRNG returning uniform numbers in [0, 1). */
+/** Seeded uniform numbers in [0, 1): the project's one generator (mulberry32, lib/stats/random.ts). */
 export function seededUniform(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
+  return mulberry32(seed);
 }
 
 /** Standard normal deviates (Box–Muller) from a seeded uniform source. */

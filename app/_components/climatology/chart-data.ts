@@ -3,6 +3,7 @@
  * components only draw them.
  */
 import type { ClimatologyResult } from "@/lib/query/climatology-core";
+import { kelvinToCelsius } from "@/lib/analysis/units";
 
 /** Point shapes per group, so groups differ by more than colour. */
 export const GROUP_SYMBOLS = ["circle", "triangle", "square", "diamond", "star", "cross", "wye"] as const;
@@ -122,7 +123,7 @@ export function buildClimatologyCharts(result: ClimatologyResult, scatterAxis: "
     // Levels reached by fewer than half of the group's flights are left out: their mean jumps with each flight.
     const minimum = Math.max(2, Math.ceil((group?.n ?? 0) / 2));
     const levels = profile.levels.filter((l) => l.flightCount >= minimum);
-    const point = (k: number, altitudeM: number) => ({ temperatureC: round(k - 273.15, 2), altitudeKm: round(altitudeM / 1000, 3) });
+    const point = (k: number, altitudeM: number) => ({ temperatureC: round(kelvinToCelsius(k), 2), altitudeKm: round(altitudeM / 1000, 3) });
     return {
       ...style(index, profile.key, profile.label),
       mean: levels.map((l) => point(l.meanTemperatureK, l.altitudeM)),

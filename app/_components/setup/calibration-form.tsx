@@ -3,13 +3,13 @@
 import { useId, useState, type FormEvent } from "react";
 import { useRouter } from "next/navigation";
 import type { TemperatureCalibration } from "@/lib/analysis/types";
+import { celsiusToKelvin, kelvinToCelsius } from "@/lib/analysis/units";
 import type { CalibrationFitResult } from "@/lib/ingest/setup-more";
 import { fitCalibrationPairs, saveCalibration } from "@/app/setup/actions";
 import { CalibrationFitChart } from "./calibration-fit-chart";
 import { CalibrationSpecFields, INPUT_UNIT_WORDS, specToValues, valuesToSpec, type SpecValues } from "./calibration-spec-fields";
 import { dayOf, Field, FieldErrorList, FormMessage, numberFrom } from "./form-bits";
 
-const KELVIN_AT_0_C = 273.15;
 
 export interface CalibrationFormInitial {
   id?: string;
@@ -39,7 +39,7 @@ export function CalibrationForm({ sensor, initial }: { sensor: { id: string; ser
   const [readings, setReadings] = useState(initial.referenceReadings);
   const [pairs, setPairs] = useState<Array<{ raw: string; referenceC: string }>>(() =>
     initial.referenceReadings && initial.referenceReadings.length >= 2
-      ? initial.referenceReadings.map((r) => ({ raw: String(r.raw), referenceC: String(Number((r.temperatureK - KELVIN_AT_0_C).toFixed(3))) }))
+      ? initial.referenceReadings.map((r) => ({ raw: String(r.raw), referenceC: String(Number(kelvinToCelsius(r.temperatureK).toFixed(3))) }))
       : [{ raw: "", referenceC: "" }, { raw: "", referenceC: "" }],
   );
   const [fitMode, setFitMode] = useState<"auto" | "correction" | "model">("auto");
@@ -73,7 +73,7 @@ export function CalibrationForm({ sensor, initial }: { sensor: { id: string; ser
   function applyFit() {
     if (!fit) return;
     setSpec(specToValues(fit.calibration));
-    setReadings(fit.points.map((p) => ({ raw: p.raw, temperatureK: p.referenceC + KELVIN_AT_0_C })));
+    setReadings(fit.points.map((p) => ({ raw: p.raw, temperatureK: celsiusToKelvin(p.referenceC) })));
     setMeta((old) => ({ ...old, method: fit.method }));
     setFitApplied(true);
   }
@@ -187,7 +187,7 @@ export function CalibrationForm({ sensor, initial }: { sensor: { id: string; ser
           <Field id={`${uid}-notes`} label="Notes" wide error={errors.notes}><textarea id={`${uid}-notes`} value={meta.notes} onChange={setMetaField("notes")} /></Field>
         </div>
         {readings && readings.length > 0 && (
-          <p className="small muted">Reference readings stored with it: {readings.map((r) => `${r.raw} ${readingUnit} → ${(r.temperatureK - KELVIN_AT_0_C).toFixed(2)} °C`).join("; ")}</p>
+          <p className="small muted">Reference readings stored with it: {readings.map((r) => `${r.raw} ${readingUnit} → ${kelvinToCelsius(r.temperatureK).toFixed(2)} °C`).join("; ")}</p>
         )}
       </section>
 
