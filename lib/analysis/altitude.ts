@@ -5,6 +5,7 @@
 import { STANDARD_GRAVITY_M_PER_S2, USSA76_SPECIFIC_GAS_CONSTANT_J_PER_KG_K } from "./constants";
 import { mixingRatioFromRelativeHumidityKgPerKg, virtualTemperatureK } from "./moisture";
 import { geometricToGeopotentialM, geopotentialToGeometricM } from "./standard-atmosphere";
+import { valueAt } from "./typed-arrays";
 
 /**
  * Hypsometric thickness (geopotential m) between pressures p1 (lower) and p2 (upper), hPa, for a
@@ -37,16 +38,16 @@ export function integrateHypsometricAltitudesM(
   const n = pressureHpa.length;
   const out = new Float64Array(n).fill(Number.NaN);
   const tv = (i: number): number => {
-    const t = temperatureK[i] as number;
-    const p = pressureHpa[i] as number;
-    const rh = relativeHumidityPct ? (relativeHumidityPct[i] as number) : Number.NaN;
+    const t = valueAt(temperatureK, i);
+    const p = valueAt(pressureHpa, i);
+    const rh = relativeHumidityPct ? valueAt(relativeHumidityPct, i) : Number.NaN;
     if (Number.isFinite(rh)) {
       const r = mixingRatioFromRelativeHumidityKgPerKg(t, p, rh);
       if (r !== null) return virtualTemperatureK(t, r);
     }
     return t;
   };
-  const valid = (i: number) => (pressureHpa[i] as number) > 0 && (temperatureK[i] as number) > 0;
+  const valid = (i: number) => valueAt(pressureHpa, i) > 0 && valueAt(temperatureK, i) > 0;
   if (startIndex < 0 || startIndex >= n || !valid(startIndex)) return out;
   let geopotentialM = geometricToGeopotentialM(startAltitudeM);
   out[startIndex] = startAltitudeM;
@@ -55,7 +56,7 @@ export function integrateHypsometricAltitudesM(
   for (let i = startIndex + 1; i < n; i++) {
     if (!valid(i)) continue;
     const currentTv = tv(i);
-    const dz = hypsometricThicknessM(pressureHpa[prev] as number, pressureHpa[i] as number, (prevTv + currentTv) / 2);
+    const dz = hypsometricThicknessM(valueAt(pressureHpa, prev), valueAt(pressureHpa, i), (prevTv + currentTv) / 2);
     if (dz === null) continue;
     geopotentialM += dz;
     out[i] = geopotentialToGeometricM(geopotentialM);

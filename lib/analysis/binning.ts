@@ -1,5 +1,6 @@
 /** Fixed-altitude binning of one flight phase into profile levels. */
 import type { Phase, ProfileLevel } from "./types";
+import { valueAt } from "./typed-arrays";
 
 /**
  * Bins samples from..to−1 into fixed altitude bins [k·binSizeM, (k+1)·binSizeM) above mean sea
@@ -22,7 +23,7 @@ export function binProfile(
   let minBin = Infinity;
   let maxBin = -Infinity;
   for (let i = from; i < to; i++) {
-    const b = Math.floor((altitudeM[i] as number) / binSizeM);
+    const b = Math.floor(valueAt(altitudeM, i) / binSizeM);
     if (b < minBin) minBin = b;
     if (b > maxBin) maxBin = b;
   }
@@ -38,45 +39,45 @@ export function binProfile(
   // Temperatures are summed as deviations from a per-bin reference to keep the SD accurate.
   const refT = new Float64Array(nBins).fill(Number.NaN);
   for (let i = from; i < to; i++) {
-    const z = altitudeM[i] as number;
+    const z = valueAt(altitudeM, i);
     const b = Math.floor(z / binSizeM) - minBin;
-    const t = temperatureK[i] as number;
-    if (Number.isNaN(refT[b] as number)) refT[b] = t;
-    const dt = t - (refT[b] as number);
-    count[b] = (count[b] as number) + 1;
-    sumZ[b] = (sumZ[b] as number) + z;
-    sumT[b] = (sumT[b] as number) + dt;
-    sumT2[b] = (sumT2[b] as number) + dt * dt;
-    const p = pressureHpa[i] as number;
+    const t = valueAt(temperatureK, i);
+    if (Number.isNaN(valueAt(refT, b))) refT[b] = t;
+    const dt = t - valueAt(refT, b);
+    count[b] = valueAt(count, b) + 1;
+    sumZ[b] = valueAt(sumZ, b) + z;
+    sumT[b] = valueAt(sumT, b) + dt;
+    sumT2[b] = valueAt(sumT2, b) + dt * dt;
+    const p = valueAt(pressureHpa, i);
     if (p === p) {
-      countP[b] = (countP[b] as number) + 1;
-      sumP[b] = (sumP[b] as number) + p;
+      countP[b] = valueAt(countP, b) + 1;
+      sumP[b] = valueAt(sumP, b) + p;
     }
-    const rh = relativeHumidityPct[i] as number;
+    const rh = valueAt(relativeHumidityPct, i);
     if (rh === rh) {
-      countRh[b] = (countRh[b] as number) + 1;
-      sumRh[b] = (sumRh[b] as number) + rh;
+      countRh[b] = valueAt(countRh, b) + 1;
+      sumRh[b] = valueAt(sumRh, b) + rh;
     }
   }
   const levels: ProfileLevel[] = [];
   for (let b = 0; b < nBins; b++) {
-    const n = count[b] as number;
+    const n = valueAt(count, b);
     if (n === 0) continue;
-    const meanDt = (sumT[b] as number) / n;
-    const variance = n > 1 ? Math.max(((sumT2[b] as number) - n * meanDt * meanDt) / (n - 1), 0) : null;
+    const meanDt = valueAt(sumT, b) / n;
+    const variance = n > 1 ? Math.max((valueAt(sumT2, b) - n * meanDt * meanDt) / (n - 1), 0) : null;
     const baseM = (b + minBin) * binSizeM;
-    const np = countP[b] as number;
-    const nrh = countRh[b] as number;
+    const np = valueAt(countP, b);
+    const nrh = valueAt(countRh, b);
     levels.push({
       phase,
       baseM,
       topM: baseM + binSizeM,
-      altitudeM: (sumZ[b] as number) / n,
+      altitudeM: valueAt(sumZ, b) / n,
       sampleCount: n,
-      temperatureK: (refT[b] as number) + meanDt,
+      temperatureK: valueAt(refT, b) + meanDt,
       temperatureSdK: variance === null ? null : Math.sqrt(variance),
-      pressureHpa: np > 0 ? (sumP[b] as number) / np : null,
-      relativeHumidityPct: nrh > 0 ? (sumRh[b] as number) / nrh : null,
+      pressureHpa: np > 0 ? valueAt(sumP, b) / np : null,
+      relativeHumidityPct: nrh > 0 ? valueAt(sumRh, b) / nrh : null,
     });
   }
   return levels;

@@ -12,6 +12,7 @@ import {
   type TemperatureCalibration,
   type ThermistorEquation,
 } from "./types";
+import { valueAt } from "./typed-arrays";
 
 export type CalibrationFailureReason =
   | "non-finite-reading"
@@ -169,7 +170,7 @@ function sensorTemperatureOrNaN(cal: TemperatureCalibration, raw: number): numbe
       return cal.input === "celsius" ? celsiusToKelvin(raw) : cal.input === "fahrenheit" ? fahrenheitToKelvin(raw) : raw;
     case "polynomial": {
       let t = 0;
-      for (let i = sensor.coefficients.length - 1; i >= 0; i--) t = t * raw + (sensor.coefficients[i] as number);
+      for (let i = sensor.coefficients.length - 1; i >= 0; i--) t = t * raw + valueAt(sensor.coefficients, i);
       return t;
     }
     case "linear-voltage": {
@@ -202,12 +203,10 @@ function sensorTemperatureK(cal: TemperatureCalibration, raw: number): Calibrati
   const t = sensorTemperatureOrNaN(cal, raw);
   if (t === t) return { ok: true, temperatureK: t };
   const sensor = cal.sensor;
-  if ((sensor.kind === "linear-voltage" || sensor.kind === "thermistor-divider") && readingToVolts(cal, raw) === null) {
-    return { ok: false, reason: "invalid-calibration" };
-  }
-  if (sensor.kind === "thermistor-divider") {
-    const v = readingToVolts(cal, raw) as number;
-    if (dividerResistanceOhm(v, sensor.supplyV, sensor.seriesOhm, sensor.thermistorSide) === null) return { ok: false, reason: "divider-out-of-range" };
+  const volts = sensor.kind === "linear-voltage" || sensor.kind === "thermistor-divider" ? readingToVolts(cal, raw) : 0;
+  if (volts === null) return { ok: false, reason: "invalid-calibration" };
+  if (sensor.kind === "thermistor-divider" && dividerResistanceOhm(volts, sensor.supplyV, sensor.seriesOhm, sensor.thermistorSide) === null) {
+    return { ok: false, reason: "divider-out-of-range" };
   }
   return { ok: false, reason: "non-physical-result" };
 }
@@ -306,7 +305,7 @@ export function fitCalibration(template: TemperatureCalibration, points: readonl
       }
       const coef = solveLeastSquares(rows, volts);
       if (!coef || coef[1] === 0) throw singular();
-      calibration = { ...base, sensor: { kind: "linear-voltage", offsetV: coef[0] as number, scaleMvPerK: coef[1] as number } };
+      calibration = { ...base, sensor: { kind: "linear-voltage", offsetV: valueAt(coef, 0), scaleMvPerK: valueAt(coef, 1) } };
       break;
     }
     case "thermistor-divider": {
@@ -327,7 +326,7 @@ export function fitCalibration(template: TemperatureCalibration, points: readonl
         calibration = { ...base, sensor: { ...sensor, equation: { kind: "steinhart-hart", a, b, c } } };
       } else {
         const coef = solveLeastSquares(lnR.map((l) => [1, l]), invT);
-        if (!coef || !((coef[1] as number) > 0)) throw singular();
+        if (!coef || !(valueAt(coef, 1) > 0)) throw singular();
         const [intercept, slope] = coef as [number, number];
         const beta = 1 / slope;
         const t0K = sensor.equation.t0K;

@@ -4,6 +4,7 @@
  * Centred moving average over samples within ±windowS/2 of each sample (time-based, so gaps and
  * irregular rates are handled), for indices from..to−1. Returns a new array of length to − from.
  */
+import { valueAt } from "./typed-arrays";
 export function movingAverageByTime(elapsedS: Float64Array, values: Float64Array, from: number, to: number, windowS: number): Float64Array {
   const count = Math.max(0, to - from);
   const out = new Float64Array(count);
@@ -12,9 +13,9 @@ export function movingAverageByTime(elapsedS: Float64Array, values: Float64Array
   let hi = from;
   let sum = 0;
   for (let i = from; i < to; i++) {
-    const t = elapsedS[i] as number;
-    while (hi < to && (elapsedS[hi] as number) <= t + half) sum += values[hi++] as number;
-    while ((elapsedS[lo] as number) < t - half) sum -= values[lo++] as number;
+    const t = valueAt(elapsedS, i);
+    while (hi < to && valueAt(elapsedS, hi) <= t + half) sum += valueAt(values, hi++);
+    while (valueAt(elapsedS, lo) < t - half) sum -= valueAt(values, lo++);
     out[i - from] = sum / (hi - lo);
   }
   return out;
@@ -41,8 +42,8 @@ export function correctSensorLag(
   for (let k = 0; k < count; k++) {
     const a = Math.max(0, k - 1);
     const b = Math.min(count - 1, k + 1);
-    const dt = (elapsedS[from + b] as number) - (elapsedS[from + a] as number);
-    if (dt > 0) out[k] = (out[k] as number) + (timeConstantS * ((smooth[b] as number) - (smooth[a] as number))) / dt;
+    const dt = valueAt(elapsedS, from + b) - valueAt(elapsedS, from + a);
+    if (dt > 0) out[k] = valueAt(out, k) + (timeConstantS * (valueAt(smooth, b) - valueAt(smooth, a))) / dt;
   }
   return out;
 }

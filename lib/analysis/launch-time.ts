@@ -150,7 +150,7 @@ export function describeLaunchTime(launchAtUtc: Date, site: LaunchSite): LaunchT
   const localHour = local.hour + local.minute / 60 + local.second / 3600 + local.millisecond / MS_PER_HOUR;
   const season = meteorologicalSeason(local.month, latitudeDeg);
 
-  const elevationM = Number.isFinite(site.elevationM) ? (site.elevationM as number) : 0;
+  const elevationM = Number.isFinite(site.elevationM) ? site.elevationM : 0;
   const { sunriseUtc, status: sunriseStatus } = findLocalSunrise(local, latitudeDeg, longitudeDeg, elevationM);
   if (sunriseStatus === "up-all-day") warnings.push("no sunrise on the local launch date: the sun stays up all day (polar day)");
   if (sunriseStatus === "down-all-day") warnings.push("no sunrise on the local launch date: the sun stays down all day (polar night)");

@@ -20,14 +20,15 @@ export interface LinearFit {
  * deviation is within a few thousand ulps of their magnitude, Sxx is round-off and a slope from it (with a
  * standard error near 1e16) would be noise.
  */
+import { valueAt } from "./typed-arrays";
 export function fitOrdinaryLeastSquares(x: ArrayLike<number>, y: ArrayLike<number>): LinearFit | null {
   const len = Math.min(x.length, y.length);
   let n = 0;
   let sumX = 0;
   let sumY = 0;
   for (let i = 0; i < len; i++) {
-    const xi = x[i] as number;
-    const yi = y[i] as number;
+    const xi = valueAt(x, i);
+    const yi = valueAt(y, i);
     if (!Number.isFinite(xi) || !Number.isFinite(yi)) continue;
     n++;
     sumX += xi;
@@ -41,8 +42,8 @@ export function fitOrdinaryLeastSquares(x: ArrayLike<number>, y: ArrayLike<numbe
   let sxy = 0;
   let syy = 0;
   for (let i = 0; i < len; i++) {
-    const xi = x[i] as number;
-    const yi = y[i] as number;
+    const xi = valueAt(x, i);
+    const yi = valueAt(y, i);
     if (!Number.isFinite(xi) || !Number.isFinite(yi)) continue;
     const dx = xi - meanX;
     const dy = yi - meanY;
@@ -76,18 +77,18 @@ export function selectKth(values: Float64Array, count: number, k: number): numbe
   while (hi > lo) {
     const mid = lo + ((hi - lo) >> 1);
     // Median-of-three pivot guards against sorted input.
-    const a = values[lo] as number;
-    const b = values[mid] as number;
-    const c = values[hi] as number;
+    const a = valueAt(values, lo);
+    const b = valueAt(values, mid);
+    const c = valueAt(values, hi);
     const pivot = a < b ? (b < c ? b : a < c ? c : a) : a < c ? a : b < c ? c : b;
     let i = lo;
     let j = hi;
     while (i <= j) {
-      while ((values[i] as number) < pivot) i++;
-      while ((values[j] as number) > pivot) j--;
+      while (valueAt(values, i) < pivot) i++;
+      while (valueAt(values, j) > pivot) j--;
       if (i <= j) {
-        const t = values[i] as number;
-        values[i] = values[j] as number;
+        const t = valueAt(values, i);
+        values[i] = valueAt(values, j);
         values[j] = t;
         i++;
         j--;
@@ -95,9 +96,9 @@ export function selectKth(values: Float64Array, count: number, k: number): numbe
     }
     if (k <= j) hi = j;
     else if (k >= i) lo = i;
-    else return values[k] as number;
+    else return valueAt(values, k);
   }
-  return values[k] as number;
+  return valueAt(values, k);
 }
 
 /** Median of values[0…count−1] (reorders that part of the array). */
@@ -107,7 +108,7 @@ export function medianInPlace(values: Float64Array, count: number): number {
   if (count % 2 === 1) return upper;
   // After selection everything below index mid is ≤ upper; the lower middle is their maximum.
   let lower = -Infinity;
-  for (let i = 0; i < mid; i++) if ((values[i] as number) > lower) lower = values[i] as number;
+  for (let i = 0; i < mid; i++) if (valueAt(values, i) > lower) lower = valueAt(values, i);
   return (lower + upper) / 2;
 }
 
@@ -120,8 +121,8 @@ export function theilSenSlope(x: ArrayLike<number>, y: ArrayLike<number>): numbe
   const xs: number[] = [];
   const ys: number[] = [];
   for (let i = 0; i < len; i++) {
-    const xi = x[i] as number;
-    const yi = y[i] as number;
+    const xi = valueAt(x, i);
+    const yi = valueAt(y, i);
     if (Number.isFinite(xi) && Number.isFinite(yi)) {
       xs.push(xi);
       ys.push(yi);
@@ -132,12 +133,12 @@ export function theilSenSlope(x: ArrayLike<number>, y: ArrayLike<number>): numbe
   const slopes = new Float64Array((n * (n - 1)) / 2);
   let count = 0;
   for (let i = 0; i < n; i++) {
-    const xi = xs[i] as number;
-    const yi = ys[i] as number;
+    const xi = valueAt(xs, i);
+    const yi = valueAt(ys, i);
     for (let j = i + 1; j < n; j++) {
-      const dx = (xs[j] as number) - xi;
+      const dx = valueAt(xs, j) - xi;
       if (dx === 0) continue;
-      slopes[count++] = ((ys[j] as number) - yi) / dx;
+      slopes[count++] = (valueAt(ys, j) - yi) / dx;
     }
   }
   if (count === 0) return null;
@@ -168,61 +169,61 @@ export function solveLeastSquares(design: readonly (readonly number[])[], rhs: r
     const row = new Float64Array(n);
     for (let j = 0; j < n; j++) {
       const v = design[i]?.[j] ?? Number.NaN;
-      row[j] = v / (scale[j] as number);
+      row[j] = v / valueAt(scale, j);
     }
     a.push(row);
   }
   const b = Float64Array.from(rhs);
   for (let i = 0; i < m; i++) {
-    const row = a[i] as Float64Array;
-    for (let j = 0; j < n; j++) if (!Number.isFinite(row[j] as number)) return null;
-    if (!Number.isFinite(b[i] as number)) return null;
+    const row = valueAt(a, i);
+    for (let j = 0; j < n; j++) if (!Number.isFinite(valueAt(row, j))) return null;
+    if (!Number.isFinite(valueAt(b, i))) return null;
   }
   const diag = new Float64Array(n);
   for (let k = 0; k < n; k++) {
     let norm = 0;
     for (let i = k; i < m; i++) {
-      const v = (a[i] as Float64Array)[k] as number;
+      const v = valueAt(valueAt(a, i), k);
       norm += v * v;
     }
     norm = Math.sqrt(norm);
     if (norm < 1e-12) return null;
-    const akk = (a[k] as Float64Array)[k] as number;
+    const akk = valueAt(valueAt(a, k), k);
     const alpha = akk > 0 ? -norm : norm;
     // Householder vector v = x − alpha·e1 stored in column k.
-    (a[k] as Float64Array)[k] = akk - alpha;
+    valueAt(a, k)[k] = akk - alpha;
     let vnorm2 = 0;
     for (let i = k; i < m; i++) {
-      const v = (a[i] as Float64Array)[k] as number;
+      const v = valueAt(valueAt(a, i), k);
       vnorm2 += v * v;
     }
     if (vnorm2 > 0) {
       for (let j = k + 1; j < n; j++) {
         let dot = 0;
-        for (let i = k; i < m; i++) dot += ((a[i] as Float64Array)[k] as number) * ((a[i] as Float64Array)[j] as number);
+        for (let i = k; i < m; i++) dot += valueAt(valueAt(a, i), k) * valueAt(valueAt(a, i), j);
         const f = (2 * dot) / vnorm2;
         for (let i = k; i < m; i++) {
-          const row = a[i] as Float64Array;
-          row[j] = (row[j] as number) - f * (row[k] as number);
+          const row = valueAt(a, i);
+          row[j] = valueAt(row, j) - f * valueAt(row, k);
         }
       }
       let dot = 0;
-      for (let i = k; i < m; i++) dot += ((a[i] as Float64Array)[k] as number) * (b[i] as number);
+      for (let i = k; i < m; i++) dot += valueAt(valueAt(a, i), k) * valueAt(b, i);
       const f = (2 * dot) / vnorm2;
-      for (let i = k; i < m; i++) b[i] = (b[i] as number) - f * ((a[i] as Float64Array)[k] as number);
+      for (let i = k; i < m; i++) b[i] = valueAt(b, i) - f * valueAt(valueAt(a, i), k);
     }
     diag[k] = alpha;
   }
   const maxDiag = Math.max(...Array.from(diag, Math.abs));
   const c = new Float64Array(n);
   for (let k = n - 1; k >= 0; k--) {
-    const dk = diag[k] as number;
+    const dk = valueAt(diag, k);
     if (Math.abs(dk) <= 1e-10 * maxDiag) return null;
-    let s = b[k] as number;
-    for (let j = k + 1; j < n; j++) s -= ((a[k] as Float64Array)[j] as number) * (c[j] as number);
+    let s = valueAt(b, k);
+    for (let j = k + 1; j < n; j++) s -= valueAt(valueAt(a, k), j) * valueAt(c, j);
     c[k] = s / dk;
   }
   const out: number[] = [];
-  for (let j = 0; j < n; j++) out.push((c[j] as number) / (scale[j] as number));
+  for (let j = 0; j < n; j++) out.push(valueAt(c, j) / valueAt(scale, j));
   return out.every(Number.isFinite) ? out : null;
 }

@@ -25,7 +25,7 @@ export interface FlightSegments {
 function lowQuantile(values: Float64Array, count: number, q: number): number {
   const part = Float64Array.from(values.subarray(0, count)).sort();
   const idx = Math.min(count - 1, Math.max(0, Math.floor(q * (count - 1))));
-  return part[idx] as number;
+  return valueAt(part, idx);
 }
 
 /**
@@ -35,6 +35,7 @@ function lowQuantile(values: Float64Array, count: number, q: number): number {
  * altitude; landing is the start of a final stretch of ≥ 30 s within 30 m of the last altitude.
  * Returns null when there is no sustained climb of at least minimumClimbM. Source: [P].
  */
+import { valueAt } from "./typed-arrays";
 export function detectFlightSegments(
   elapsedS: Float64Array,
   altitudeM: Float64Array,
@@ -42,21 +43,21 @@ export function detectFlightSegments(
 ): FlightSegments | null {
   const n = altitudeM.length;
   if (n < 3) return null;
-  const t0 = elapsedS[0] as number;
+  const t0 = valueAt(elapsedS, 0);
   let groundCount = 0;
-  while (groundCount < n && (elapsedS[groundCount] as number) - t0 <= GROUND_WINDOW_S) groundCount++;
+  while (groundCount < n && valueAt(elapsedS, groundCount) - t0 <= GROUND_WINDOW_S) groundCount++;
   const groundM = lowQuantile(altitudeM, Math.max(groundCount, 1), 0.1);
   const threshold = groundM + LIFTOFF_MARGIN_M;
 
   // nextBelow[i]: first index ≥ i whose altitude is at or below the threshold (n when none).
   const nextBelow = new Int32Array(n + 1);
   nextBelow[n] = n;
-  for (let i = n - 1; i >= 0; i--) nextBelow[i] = (altitudeM[i] as number) <= threshold ? i : (nextBelow[i + 1] as number);
+  for (let i = n - 1; i >= 0; i--) nextBelow[i] = valueAt(altitudeM, i) <= threshold ? i : valueAt(nextBelow, i + 1);
   let airborne = -1;
   for (let i = 0; i < n; i++) {
-    if ((altitudeM[i] as number) <= threshold) continue;
-    const below = nextBelow[i] as number;
-    if (below === n || (elapsedS[below] as number) - (elapsedS[i] as number) >= LIFTOFF_SUSTAIN_S) {
+    if (valueAt(altitudeM, i) <= threshold) continue;
+    const below = valueAt(nextBelow, i);
+    if (below === n || valueAt(elapsedS, below) - valueAt(elapsedS, i) >= LIFTOFF_SUSTAIN_S) {
       airborne = i;
       break;
     }
@@ -65,24 +66,24 @@ export function detectFlightSegments(
   let launchIndex = airborne;
   while (
     launchIndex > 0 &&
-    (altitudeM[launchIndex - 1] as number) < (altitudeM[launchIndex] as number) &&
-    (altitudeM[launchIndex] as number) > groundM
+    valueAt(altitudeM, launchIndex - 1) < valueAt(altitudeM, launchIndex) &&
+    valueAt(altitudeM, launchIndex) > groundM
   ) {
     launchIndex--;
   }
   let burstIndex = launchIndex;
-  for (let i = launchIndex; i < n; i++) if ((altitudeM[i] as number) > (altitudeM[burstIndex] as number)) burstIndex = i;
-  const launchAltitudeM = altitudeM[launchIndex] as number;
-  if ((altitudeM[burstIndex] as number) - launchAltitudeM < minimumClimbM) return null;
+  for (let i = launchIndex; i < n; i++) if (valueAt(altitudeM, i) > valueAt(altitudeM, burstIndex)) burstIndex = i;
+  const launchAltitudeM = valueAt(altitudeM, launchIndex);
+  if (valueAt(altitudeM, burstIndex) - launchAltitudeM < minimumClimbM) return null;
 
   let landingIndex: number | null = null;
-  const finalM = altitudeM[n - 1] as number;
+  const finalM = valueAt(altitudeM, n - 1);
   let i = n - 1;
-  while (i > burstIndex && Math.abs((altitudeM[i - 1] as number) - finalM) <= LANDED_BAND_M) i--;
+  while (i > burstIndex && Math.abs(valueAt(altitudeM, i - 1) - finalM) <= LANDED_BAND_M) i--;
   if (
     i > burstIndex &&
-    (elapsedS[n - 1] as number) - (elapsedS[i] as number) >= LANDED_MIN_S &&
-    (altitudeM[burstIndex] as number) - finalM > minimumClimbM
+    valueAt(elapsedS, n - 1) - valueAt(elapsedS, i) >= LANDED_MIN_S &&
+    valueAt(altitudeM, burstIndex) - finalM > minimumClimbM
   ) {
     landingIndex = i;
   }

@@ -7,6 +7,7 @@
  * second tropopause is defined by the same criterion, within or above that 1 km layer.
  */
 import type { ProfileLevel, TropopauseResult } from "./types";
+import { valueAt } from "./typed-arrays";
 
 /** WMO thresholds, K/km. */
 const TROPOPAUSE_LAPSE_K_PER_KM = 2;
@@ -34,7 +35,7 @@ function toProfile(levels: readonly ProfileLevel[]): Profile {
     .slice()
     .sort((a, b) => a.altitudeM - b.altitudeM);
   const widths = usable.map((l) => l.topM - l.baseM).filter((w) => w > 0).sort((a, b) => a - b);
-  const binM = widths.length > 0 ? (widths[widths.length >> 1] as number) : 100;
+  const binM = widths.length > 0 ? valueAt(widths, widths.length >> 1) : 100;
   return {
     z: Float64Array.from(usable, (l) => l.altitudeM),
     t: Float64Array.from(usable, (l) => l.temperatureK),
@@ -46,31 +47,31 @@ function toProfile(levels: readonly ProfileLevel[]): Profile {
 
 /** Lapse rate −dT/dz between levels i and j, K/km. */
 function lapse(pr: Profile, i: number, j: number): number {
-  return (((pr.t[i] as number) - (pr.t[j] as number)) / ((pr.z[j] as number) - (pr.z[i] as number))) * 1000;
+  return ((valueAt(pr.t, i) - valueAt(pr.t, j)) / (valueAt(pr.z, j) - valueAt(pr.z, i))) * 1000;
 }
 
 function interpolateAt(pr: Profile, altitudeM: number): { temperatureK: number; pressureHpa: number | null } {
   const n = pr.z.length;
   let i = 0;
-  while (i + 2 < n && (pr.z[i + 1] as number) < altitudeM) i++;
-  const z0 = pr.z[i] as number;
-  const z1 = pr.z[Math.min(i + 1, n - 1)] as number;
+  while (i + 2 < n && valueAt(pr.z, i + 1) < altitudeM) i++;
+  const z0 = valueAt(pr.z, i);
+  const z1 = valueAt(pr.z, Math.min(i + 1, n - 1));
   const f = z1 > z0 ? Math.min(Math.max((altitudeM - z0) / (z1 - z0), 0), 1) : 0;
-  const t0 = pr.t[i] as number;
-  const t1 = pr.t[Math.min(i + 1, n - 1)] as number;
-  const p0 = pr.p[i] as number;
-  const p1 = pr.p[Math.min(i + 1, n - 1)] as number;
+  const t0 = valueAt(pr.t, i);
+  const t1 = valueAt(pr.t, Math.min(i + 1, n - 1));
+  const p0 = valueAt(pr.p, i);
+  const p1 = valueAt(pr.p, Math.min(i + 1, n - 1));
   const pressureHpa = p0 > 0 && p1 > 0 ? Math.exp(Math.log(p0) + f * (Math.log(p1) - Math.log(p0))) : null;
   return { temperatureK: t0 + f * (t1 - t0), pressureHpa };
 }
 
 /** Levels a and a + 1 are further apart than a data gap (more than two empty bins). */
 function isGap(pr: Profile, a: number): boolean {
-  return (pr.z[a + 1] as number) - (pr.z[a] as number) > pr.maxSpacingM;
+  return valueAt(pr.z, a + 1) - valueAt(pr.z, a) > pr.maxSpacingM;
 }
 
 function gapText(pr: Profile, a: number): string {
-  return `${Math.round(pr.z[a] as number)} m to ${Math.round(pr.z[a + 1] as number)} m`;
+  return `${Math.round(valueAt(pr.z, a))} m to ${Math.round(valueAt(pr.z, a + 1))} m`;
 }
 
 /**
@@ -83,9 +84,9 @@ function gapText(pr: Profile, a: number): string {
 function gapMayHideTropopause(pr: Profile, a: number): boolean {
   const n = pr.z.length;
   const b = a + 1;
-  const limitM = (pr.z[b] as number) + WINDOW_M;
+  const limitM = valueAt(pr.z, b) + WINDOW_M;
   let highest = -1;
-  for (let j = b + 1; j < n && (pr.z[j] as number) <= limitM; j++) highest = j;
+  for (let j = b + 1; j < n && valueAt(pr.z, j) <= limitM; j++) highest = j;
   return highest < 0 || lapse(pr, b, highest) <= TROPOPAUSE_LAPSE_K_PER_KM;
 }
 
@@ -99,9 +100,9 @@ function gapMayHideTropopause(pr: Profile, a: number): boolean {
  */
 function searchWmo(pr: Profile, startIndex: number, floorM: number): Search {
   const n = pr.z.length;
-  const top = pr.z[n - 1] as number;
+  const top = valueAt(pr.z, n - 1);
   for (let k = Math.max(startIndex, 0); k + 1 < n; k++) {
-    const zk = pr.z[k] as number;
+    const zk = valueAt(pr.z, k);
     if (k > startIndex && isGap(pr, k - 1) && zk > floorM && gapMayHideTropopause(pr, k - 1)) {
       return {
         status: "undetermined",
@@ -114,7 +115,7 @@ function searchWmo(pr: Profile, startIndex: number, floorM: number): Search {
     const windowTop = zk + WINDOW_M;
     let rejected = false;
     let gap: string | null = null;
-    for (let j = k + 1; j < n && (pr.z[j] as number) <= windowTop; j++) {
+    for (let j = k + 1; j < n && valueAt(pr.z, j) <= windowTop; j++) {
       if (lapse(pr, k, j) > TROPOPAUSE_LAPSE_K_PER_KM) {
         rejected = true;
         break;
@@ -122,7 +123,7 @@ function searchWmo(pr: Profile, startIndex: number, floorM: number): Search {
     }
     if (rejected) continue;
     // Coverage of the window: a gap anywhere in it, including one that straddles its top.
-    for (let a = k; a + 1 < n && (pr.z[a] as number) < windowTop - pr.binM; a++) {
+    for (let a = k; a + 1 < n && valueAt(pr.z, a) < windowTop - pr.binM; a++) {
       if (isGap(pr, a)) {
         gap = `a data gap from ${gapText(pr, a)} lies within 2 km above the candidate`;
         break;
@@ -141,8 +142,8 @@ function searchWmo(pr: Profile, startIndex: number, floorM: number): Search {
       const below = lapse(pr, k - 1, k);
       const above = lapse(pr, k, k + 1);
       if (below > TROPOPAUSE_LAPSE_K_PER_KM && below > above) {
-        const m0 = ((pr.z[k - 1] as number) + zk) / 2;
-        const m1 = (zk + (pr.z[k + 1] as number)) / 2;
+        const m0 = (valueAt(pr.z, k - 1) + zk) / 2;
+        const m1 = (zk + valueAt(pr.z, k + 1)) / 2;
         altitudeM = m0 + ((below - TROPOPAUSE_LAPSE_K_PER_KM) / (below - above)) * (m1 - m0);
       }
     }
@@ -159,15 +160,15 @@ function searchWmo(pr: Profile, startIndex: number, floorM: number): Search {
  */
 function steepLayerAbove(pr: Profile, i: number): "yes" | "no" | "unknown" {
   const n = pr.z.length;
-  const zi = pr.z[i] as number;
+  const zi = valueAt(pr.z, i);
   const layerTop = zi + SEPARATION_WINDOW_M;
   let any = false;
-  for (let j = i + 1; j < n && (pr.z[j] as number) <= layerTop; j++) {
+  for (let j = i + 1; j < n && valueAt(pr.z, j) <= layerTop; j++) {
     any = true;
     if (lapse(pr, i, j) <= SECOND_TROPOPAUSE_SEPARATION_K_PER_KM) return "no";
   }
   if (!any) return "unknown";
-  for (let a = i; a + 1 < n && (pr.z[a] as number) < layerTop - pr.binM; a++) if (isGap(pr, a)) return "unknown";
+  for (let a = i; a + 1 < n && valueAt(pr.z, a) < layerTop - pr.binM; a++) if (isGap(pr, a)) return "unknown";
   return "yes";
 }
 
@@ -199,13 +200,13 @@ export function findTropopauses(
         : { status: "not-found" };
     return { first: publicResult(first), second };
   }
-  const top = pr.z[n - 1] as number;
+  const top = valueAt(pr.z, n - 1);
   let openLayer: string | null = null;
   for (let i = first.index + 1; i + 1 < n; i++) {
-    if (top < (pr.z[i] as number) + SEPARATION_WINDOW_M - pr.binM) break;
+    if (top < valueAt(pr.z, i) + SEPARATION_WINDOW_M - pr.binM) break;
     const steep = steepLayerAbove(pr, i);
     if (steep === "unknown") {
-      openLayer ??= `the 1 km above ${Math.round(pr.z[i] as number)} m is not fully measured, so a second tropopause cannot be ruled out`;
+      openLayer ??= `the 1 km above ${Math.round(valueAt(pr.z, i))} m is not fully measured, so a second tropopause cannot be ruled out`;
       continue;
     }
     if (steep === "no") continue;
