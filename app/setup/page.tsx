@@ -1,7 +1,8 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { connection } from "next/server";
-import { getProgramSettings, listSetupSchools } from "@/lib/query/setup-pages";
+import { listSetupSchools } from "@/lib/query/setup-pages";
+import { getProgramSettings } from "@/lib/ingest/setup-reads";
 import { getViewer } from "@/app/_lib/viewer";
 import { can } from "@/lib/auth/permissions";
 import { NewSchoolForm } from "./_components/new-school-form";

@@ -3,9 +3,6 @@ import { isDeepStrictEqual } from "node:util";
 import { getDb, type Db } from "../db/index.ts";
 import { can } from "../auth/permissions.ts";
 import { flightVisibilityWhere, type Viewer } from "../auth/visibility.ts";
-import { getProgramParameters } from "../ingest/store.ts";
-import { DEFAULT_PARAMETERS } from "../ingest/schemas.ts";
-import { setupItemUses, type SetupItemKind } from "../ingest/setup-more.ts";
 
 const iso = (d: Date) => d.toISOString();
 const isoOrNull = (d: Date | null) => (d ? d.toISOString() : null);
@@ -136,12 +133,6 @@ export async function getSetupLayout(layoutId: string, db: Db = getDb()) {
   return { id: l.id, schoolId: l.schoolId, schoolName: l.school.name, name: l.name, spec: l.spec, flightCount: l._count.flights, updatedAt: iso(l.updatedAt) };
 }
 
-/** The program's analysis parameters now, whether they were ever set, and the built-in defaults. */
-export async function getProgramSettings(db: Db = getDb()) {
-  const [row, parameters] = await Promise.all([db.programSettings.findUnique({ where: { id: 1 } }), getProgramParameters(db)]);
-  return { parameters, defaults: DEFAULT_PARAMETERS, updatedAt: row ? iso(row.updatedAt) : null, isDefault: !row };
-}
-
 /** Rows for the re-analysis list: the flights of a selection the viewer may see, with their current run's numbers. */
 export async function listFlightsForReprocess(viewer: Viewer, flightIds: string[], db: Db = getDb()) {
   if (flightIds.length === 0) return [];
@@ -238,8 +229,3 @@ export async function getRunHistory(viewer: Viewer, flightId: string, db: Db = g
 
 export type RunHistory = NonNullable<Awaited<ReturnType<typeof getRunHistory>>>;
 export type RunHistoryEntry = RunHistory["runs"][number];
-
-/** What uses a setup item ("3 flights"), for its page's delete button; empty when it can be deleted. */
-export async function getSetupItemUses(kind: SetupItemKind, id: string, db: Db = getDb()): Promise<string[]> {
-  return setupItemUses(db, kind, id);
-}

@@ -1,6 +1,6 @@
 import type { Metadata } from "next";
 import { connection } from "next/server";
-import { getProgramSettings } from "@/lib/query/setup-pages";
+import { getProgramSettings } from "@/lib/ingest/setup-reads";
 import { ParametersForm } from "@/app/_components/setup/parameters-form";
 import { getViewer } from "@/app/_lib/viewer";
 import { membersOnly } from "@/app/setup/_lib/members-only";

@@ -2,7 +2,7 @@ import { analysisParametersSchema } from "@/lib/ingest/schemas";
 import { selectFlights } from "@/lib/ingest";
 import { getDb } from "@/lib/db";
 import { setProgramParameters } from "@/lib/ingest/setup-more";
-import { getProgramSettings } from "@/lib/query/setup-pages";
+import { getProgramSettings } from "@/lib/ingest/setup-reads";
 import { jsonOk, withErrors } from "../../_lib/respond";
 import { refuseVisitors, readJson, refuseUnlessAllowed } from "../_lib/setup-api";
 import { currentActor } from "@/app/_lib/viewer";
