@@ -262,25 +262,28 @@ export function cleanSamples(
     }
   }
   // Sensor faults are judged before the Hampel filter, which would keep one phase of an
-  // alternating signal and so hide it.
+  // alternating signal and so hide it. Alternation is judged on every calibrated reading, out of
+  // range ones included (a sensor flipping to an impossible value every other row is faulty, not
+  // half-usable); a stuck reading on the rows kept so far, which all have an altitude.
+  const readable = new Uint8Array(n);
+  for (let k = 0; k < n; k++) if (temperatureK[k] === temperatureK[k]) readable[k] = 1;
+  const readings = indicesOf(readable, n);
+  const alternating = readings.length >= 3 ? detectAlternatingTemperature(gather(temperatureK, readings)) : null;
+  if (alternating) {
+    flags.push("temperature-alternating");
+    warnings.push({
+      code: "temperature-alternating",
+      message: `The temperature jumps up and down by 10 K or more from one row to the next at ${alternating.zigzagCount} rows (first at line ${sourceLine[readings[alternating.firstIndex] as number]}; longest run ${alternating.longestRun}): the sensor or its wiring looks faulty. The flight is QC-flagged and no tropopause is reported.`,
+    });
+  }
   if (kept.length >= 3) {
-    const keptT = gather(temperatureK, kept);
-    const keptZ = gather(altitudeM, kept);
     const line = (k: number): number => sourceLine[kept[k] as number] as number;
-    const stuck = detectStuckTemperature(keptZ, keptT);
+    const stuck = detectStuckTemperature(gather(altitudeM, kept), gather(temperatureK, kept));
     if (stuck) {
       flags.push("temperature-stuck");
       warnings.push({
         code: "temperature-stuck",
         message: `The temperature reads ${stuck.temperatureK.toFixed(2)} K in ${stuck.sampleCount} consecutive rows (lines ${line(stuck.startIndex)}–${line(stuck.endIndex)}) while the altitude changes by ${Math.round(stuck.altitudeSpanM)} m${stuck.hiddenChangeK === null ? "" : ` (the readings hide a change of about ${stuck.hiddenChangeK.toFixed(1)} K)`}: the sensor looks stuck. The flight is QC-flagged and no tropopause is reported.`,
-      });
-    }
-    const alternating = detectAlternatingTemperature(keptT);
-    if (alternating) {
-      flags.push("temperature-alternating");
-      warnings.push({
-        code: "temperature-alternating",
-        message: `The temperature jumps up and down by 10 K or more from one row to the next at ${alternating.zigzagCount} rows (first at line ${line(alternating.firstIndex)}; longest run ${alternating.longestRun}): the sensor or its wiring looks faulty. The flight is QC-flagged and no tropopause is reported.`,
       });
     }
   }

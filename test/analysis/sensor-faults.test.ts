@@ -125,6 +125,13 @@ describe("alternating temperature", () => {
     expect(a.tropopause.first.status).not.toBe("found");
   });
 
+  test("every other reading impossible (a loose contact reading 400 K) is flagged, not half-used", () => {
+    const a = run(noisyStandard(14).map((s, i) => ((s.altitudeM ?? 0) >= 2000 && i % 2 === 1 ? { ...s, rawTemperature: 400 } : s)));
+    expect(a.qc.removed.outOfRange).toBeGreaterThan(1000);
+    expect(a.qc.flags).toContain("temperature-alternating");
+    expect(a.summary.tropopauseAltitudeM).toBeNull();
+  });
+
   test("a few isolated 30 K spikes are the spike filter's job, not a faulty sensor", () => {
     const samples = noisyStandard(15).map((s, i) => ([1500, 2600, 3900].includes(i) ? { ...s, rawTemperature: (s.rawTemperature as number) + 30 } : s));
     const a = run(samples);
