@@ -4,7 +4,7 @@
  * out-of-range rows, GPS jumps and temperature spikes. Every removal is counted.
  */
 import { calibrateReadingOrNaN } from "./calibration";
-import { altitudeJumpMask, hampelSpikeMask } from "./filters";
+import { altitudeJumpMask, detectAlternatingTemperature, detectStuckTemperature, hampelSpikeMask } from "./filters";
 import { integrateHypsometricAltitudesM } from "./altitude";
 import { standardAtmosphereAltitudeForPressureM } from "./standard-atmosphere";
 import type { AnalysisParameters, QcReport, QcWarning, RawSample, SiteInfo, TemperatureCalibration } from "./types";
@@ -13,6 +13,16 @@ import type { AnalysisParameters, QcReport, QcWarning, RawSample, SiteInfo, Temp
 export const TEMPERATURE_RANGE_K = { min: 150, max: 350 } as const;
 export const ALTITUDE_RANGE_M = { min: -500, max: 60000 } as const;
 const PRESSURE_RANGE_HPA = { min: 0.1, max: 1100 } as const;
+/**
+ * When at least this share of the altitude readings, and at least MIN rows, lie outside the
+ * plausible range, the altitude column as a whole is not trusted [P]: a GPS (or column) that is
+ * that often impossible (wrong unit or column, ×400, negative) is no passing glitch, and its
+ * in-range readings are suspect too. With pressure, every altitude then comes from pressure;
+ * either way the flight is QC-flagged ("implausible-altitudes"). A few glitch rows, or rows with
+ * no altitude at all, are simply filled from pressure (informational "altitude-from-pressure").
+ */
+const IMPLAUSIBLE_ALTITUDE_SHARE = 0.01;
+const IMPLAUSIBLE_ALTITUDE_MIN_ROWS = 10;
 /** Hampel threshold floor, K: smaller departures are not treated as spikes [P]. */
 const HAMPEL_MIN_THRESHOLD_K = 0.3;
 
@@ -142,6 +152,9 @@ export function cleanSamples(
   let hasPressure = false;
   let hasHumidity = false;
   let gpsCount = 0;
+  let altitudeReadings = 0;
+  let implausibleAltitudes = 0;
+  let firstImplausibleLine = 0;
   for (let k = 0; k < n; k++) {
     const s = samples[unique[k] as number] as RawSample;
     elapsedS[k] = s.elapsedS;
@@ -157,8 +170,25 @@ export function cleanSamples(
     rhPct[k] = rh >= 0 && rh <= 110 ? Math.min(rh, 100) : Number.NaN;
     if (rhPct[k] === rhPct[k]) hasHumidity = true;
     const z = num(s.altitudeM);
+    if (z === z) altitudeReadings++;
     gpsM[k] = z >= ALTITUDE_RANGE_M.min && z <= ALTITUDE_RANGE_M.max ? z : Number.NaN;
     if (gpsM[k] === gpsM[k]) gpsCount++;
+    else if (z === z) {
+      if (implausibleAltitudes === 0) firstImplausibleLine = sourceLine[k] as number;
+      implausibleAltitudes++;
+    }
+  }
+  const altitudeColumnImplausible = implausibleAltitudes >= Math.max(IMPLAUSIBLE_ALTITUDE_MIN_ROWS, IMPLAUSIBLE_ALTITUDE_SHARE * altitudeReadings);
+  if (altitudeColumnImplausible) {
+    flags.push("implausible-altitudes");
+    warnings.push({
+      code: "implausible-altitudes",
+      message: `${implausibleAltitudes} of ${altitudeReadings} altitude readings (first at line ${firstImplausibleLine}) are outside −500 m to 60 km: check the altitude column and its unit. ${hasPressure ? "No altitude reading is used; all altitudes come from pressure." : "Those rows are dropped."} The flight is QC-flagged.`,
+    });
+    if (hasPressure) {
+      gpsM.fill(Number.NaN);
+      gpsCount = 0;
+    }
   }
   if (failedCalibration > 0) {
     warnings.push({ code: "calibration-failures", message: `${failedCalibration} raw temperature readings could not be converted by the calibration and count as missing.` });
@@ -229,6 +259,32 @@ export function cleanSamples(
     removed.gpsJumps = before - kept.length;
     if (removed.gpsJumps > 0) {
       warnings.push({ code: "gps-jumps", message: `${removed.gpsJumps} rows with implausible altitude jumps (faster than ${params.maxVerticalSpeedMPerS} m/s) were dropped.` });
+    }
+  }
+  // Sensor faults are judged before the Hampel filter, which would keep one phase of an
+  // alternating signal and so hide it. Alternation is judged on every calibrated reading, out of
+  // range ones included (a sensor flipping to an impossible value every other row is faulty, not
+  // half-usable); a stuck reading on the rows kept so far, which all have an altitude.
+  const readable = new Uint8Array(n);
+  for (let k = 0; k < n; k++) if (temperatureK[k] === temperatureK[k]) readable[k] = 1;
+  const readings = indicesOf(readable, n);
+  const alternating = readings.length >= 3 ? detectAlternatingTemperature(gather(temperatureK, readings)) : null;
+  if (alternating) {
+    flags.push("temperature-alternating");
+    warnings.push({
+      code: "temperature-alternating",
+      message: `The temperature jumps up and down by 10 K or more from one row to the next at ${alternating.zigzagCount} rows (first at line ${sourceLine[readings[alternating.firstIndex] as number]}; longest run ${alternating.longestRun}): the sensor or its wiring looks faulty. The flight is QC-flagged and no tropopause is reported.`,
+    });
+  }
+  if (kept.length >= 3) {
+    const line = (k: number): number => sourceLine[kept[k] as number] as number;
+    const stuck = detectStuckTemperature(gather(altitudeM, kept), gather(temperatureK, kept));
+    if (stuck) {
+      flags.push("temperature-stuck");
+      warnings.push({
+        code: "temperature-stuck",
+        message: `The temperature reads ${stuck.temperatureK.toFixed(2)} K in ${stuck.sampleCount} consecutive rows (lines ${line(stuck.startIndex)}–${line(stuck.endIndex)}) while the altitude changes by ${Math.round(stuck.altitudeSpanM)} m${stuck.hiddenChangeK === null ? "" : ` (the readings hide a change of about ${stuck.hiddenChangeK.toFixed(1)} K)`}: the sensor looks stuck. The flight is QC-flagged and no tropopause is reported.`,
+      });
     }
   }
   if (kept.length >= 3) {

@@ -151,3 +151,236 @@ export function altitudeJumpMask(
   }
   return mask;
 }
+
+/** Two readings closer than this are the same reading (calibrated values of one raw count), K. */
+const SAME_READING_K = 1e-9;
+
+/** A run of identical temperature readings that a working sensor would not produce. */
+export interface StuckTemperatureSpan {
+  /** First and last index of the run in the input arrays. */
+  startIndex: number;
+  endIndex: number;
+  sampleCount: number;
+  /** The repeated reading, K. */
+  temperatureK: number;
+  /** max − min altitude over the run, m. */
+  altitudeSpanM: number;
+  /**
+   * The change the run hid, K: the jump back to the air's temperature when readings resume, or,
+   * for a run to the end of the record, the lapse rate below the run times its altitude span.
+   * Null for a record of one reading.
+   */
+  hiddenChangeK: number | null;
+}
+
+export interface StuckTemperatureOptions {
+  /** Fewest consecutive identical readings that can count as stuck [P]. */
+  minSamples: number;
+  /** Least altitude covered by the run, m [P]. */
+  minAltitudeSpanM: number;
+  /** A whole record of one reading must cover at least this much altitude, m [P]. */
+  minConstantSpanM: number;
+  /** The rest of the record must show the sensor's noise: this share of its successive changes reverse direction [P]. */
+  minReversalShare: number;
+  /** The hidden change must be at least this many reading steps at the run's value [P]… */
+  minHiddenSteps: number;
+  /** …and at least this many kelvin [P]. */
+  minHiddenChangeK: number;
+  /** Depth of profile below a run to the end of the record whose lapse rate predicts the run's change, m [P]. */
+  lapseDepthBelowM: number;
+}
+
+/**
+ * [P] A live sensor at 1–2 s steps shows count-level noise; 30 identical readings in a row over
+ * 500 m of climb are not noise when the readings, once they resume, have moved by three counts or
+ * more. A whole record of one reading over 2 km is impossible in air that cools by about 6.5 K/km
+ * (13 K over 2 km, many logger counts).
+ */
+export const DEFAULT_STUCK_TEMPERATURE_OPTIONS: StuckTemperatureOptions = {
+  minSamples: 30,
+  minAltitudeSpanM: 500,
+  minConstantSpanM: 2000,
+  minReversalShare: 0.2,
+  minHiddenSteps: 3,
+  minHiddenChangeK: 1,
+  lapseDepthBelowM: 2000,
+};
+
+/** Readings after a run whose median stands for where the sensor resumed. */
+const RESUME_SAMPLES = 5;
+
+/**
+ * A stuck or constant temperature sensor [P]: the run of identical readings (same value to
+ * 1e-9 K) over the widest altitude span that passes these tests:
+ * - ≥ minSamples readings over ≥ minAltitudeSpanM of altitude (the balloon moved, the reading did not);
+ * - a record of that one reading only: ≥ minConstantSpanM of altitude;
+ * - otherwise the rest of the record shows a live, noisy sensor (≥ minReversalShare of its
+ *   successive non-zero changes reverse direction), and the change the run hid is ≥ minHiddenSteps
+ *   reading steps (the gap from the run's value to the nearest other reading: a thermistor's step
+ *   grows in the cold) and ≥ minHiddenChangeK. The hidden change is the jump to the median of the
+ *   next RESUME_SAMPLES readings when the record goes on (a quantised reading of real air leaves
+ *   its value by one step, a stuck one jumps to where the air now is), else the lapse rate of the
+ *   lapseDepthBelowM of profile below the run times the run's altitude span.
+ * The noise test keeps noiseless model profiles (the isothermal 11–20 km of the 1976 standard
+ * atmosphere reads exactly one value) from counting; the step test keeps a coarse logger's long
+ * stays on one count (at the cold turning point of a tropopause, say) from counting. Inputs must
+ * be finite and aligned; they are never modified.
+ */
+export function detectStuckTemperature(
+  altitudeM: Float64Array,
+  temperatureK: Float64Array,
+  options: StuckTemperatureOptions = DEFAULT_STUCK_TEMPERATURE_OPTIONS,
+): StuckTemperatureSpan | null {
+  const n = temperatureK.length;
+  if (n < options.minSamples) return null;
+  let best: StuckTemperatureSpan | null = null;
+  for (let start = 0; start < n; ) {
+    const value = temperatureK[start] as number;
+    let end = start;
+    let zMin = altitudeM[start] as number;
+    let zMax = zMin;
+    while (end + 1 < n && Math.abs((temperatureK[end + 1] as number) - value) <= SAME_READING_K) {
+      end++;
+      const z = altitudeM[end] as number;
+      if (z < zMin) zMin = z;
+      if (z > zMax) zMax = z;
+    }
+    const count = end - start + 1;
+    const spanM = zMax - zMin;
+    if (count >= options.minSamples && spanM >= options.minAltitudeSpanM && (best === null || spanM > best.altitudeSpanM)) {
+      const hidden = hiddenChange(altitudeM, temperatureK, start, end, spanM, options);
+      if (hidden.stuck) best = { startIndex: start, endIndex: end, sampleCount: count, temperatureK: value, altitudeSpanM: spanM, hiddenChangeK: hidden.changeK };
+    }
+    start = end + 1;
+  }
+  return best;
+}
+
+function hiddenChange(
+  altitudeM: Float64Array,
+  temperatureK: Float64Array,
+  start: number,
+  end: number,
+  spanM: number,
+  options: StuckTemperatureOptions,
+): { stuck: boolean; changeK: number | null } {
+  const n = temperatureK.length;
+  if (n - (end - start + 1) < options.minSamples) return { stuck: spanM >= options.minConstantSpanM, changeK: null };
+  const value = temperatureK[start] as number;
+  // Outside the run: the reading step at the run's value, and how often successive changes
+  // reverse (pairs across the run's edges are skipped).
+  let stepK = Number.POSITIVE_INFINITY;
+  let previousChange = 0;
+  let pairs = 0;
+  let reversals = 0;
+  for (let i = 0; i < n; i++) {
+    if (i >= start && i <= end) {
+      previousChange = 0;
+      continue;
+    }
+    const gap = Math.abs((temperatureK[i] as number) - value);
+    if (gap > SAME_READING_K && gap < stepK) stepK = gap;
+    if (i === 0 || i - 1 === end) continue;
+    const change = (temperatureK[i] as number) - (temperatureK[i - 1] as number);
+    if (Math.abs(change) <= SAME_READING_K) continue;
+    if (previousChange !== 0) {
+      pairs++;
+      if (Math.sign(change) !== Math.sign(previousChange)) reversals++;
+    }
+    previousChange = change;
+  }
+  if (pairs < options.minSamples || reversals < options.minReversalShare * pairs) return { stuck: false, changeK: null };
+  let changeK: number | null;
+  if (end + 1 < n) {
+    const resumed = Float64Array.from(temperatureK.subarray(end + 1, Math.min(n, end + 1 + RESUME_SAMPLES)));
+    changeK = Math.abs(medianInPlace(resumed, resumed.length) - value);
+  } else {
+    const slope = slopeBelow(altitudeM, temperatureK, start, options.lapseDepthBelowM, options.minSamples);
+    changeK = slope === null ? null : Math.abs(slope) * spanM;
+  }
+  const stuck = changeK !== null && changeK >= options.minHiddenSteps * stepK && changeK >= options.minHiddenChangeK;
+  return { stuck, changeK };
+}
+
+/** Least-squares dT/dz (K/m) of the readings before index `start` within depthM below its altitude; null when too few. */
+function slopeBelow(altitudeM: Float64Array, temperatureK: Float64Array, start: number, depthM: number, minSamples: number): number | null {
+  const top = altitudeM[start] as number;
+  let count = 0;
+  let sumZ = 0;
+  let sumT = 0;
+  for (let i = 0; i < start; i++) {
+    const z = altitudeM[i] as number;
+    if (z > top || z < top - depthM) continue;
+    count++;
+    sumZ += z;
+    sumT += temperatureK[i] as number;
+  }
+  if (count < minSamples) return null;
+  const meanZ = sumZ / count;
+  const meanT = sumT / count;
+  let szz = 0;
+  let szt = 0;
+  for (let i = 0; i < start; i++) {
+    const z = altitudeM[i] as number;
+    if (z > top || z < top - depthM) continue;
+    szz += (z - meanZ) ** 2;
+    szt += (z - meanZ) * ((temperatureK[i] as number) - meanT);
+  }
+  return szz > 0 ? szt / szz : null;
+}
+
+/** Temperatures that jump up and down by tens of kelvin from one reading to the next. */
+export interface AlternatingTemperature {
+  /** Readings that differ from both neighbours by ≥ the step, in opposite directions. */
+  zigzagCount: number;
+  /** Longest run of consecutive zigzag readings. */
+  longestRun: number;
+  /** Index of the first zigzag reading. */
+  firstIndex: number;
+}
+
+export interface AlternatingTemperatureOptions {
+  /** Jump size that no air mass shows between successive readings of a climbing balloon, K [P]. */
+  minStepK: number;
+  /** Consecutive zigzag readings that make an alternating sensor [P]. */
+  minRun: number;
+  /** …or this share of all readings, scattered [P]… */
+  minShare: number;
+  /** …but never fewer than this many [P]. */
+  minCount: number;
+}
+
+/** [P] "tens of kelvin": 10 K; one isolated spike is a glitch (the Hampel filter's job), four in a row or 1 % of a record is a sensor fault. */
+export const DEFAULT_ALTERNATING_TEMPERATURE_OPTIONS: AlternatingTemperatureOptions = { minStepK: 10, minRun: 4, minShare: 0.01, minCount: 5 };
+
+/**
+ * An alternating (wildly noisy) temperature sensor [P]: reading i is a zigzag when it differs from
+ * both neighbours by ≥ minStepK with opposite signs (up then down, or down then up). Reported when
+ * minRun zigzags follow each other, or zigzags make ≥ minShare of all readings (and ≥ minCount).
+ * The Hampel filter would otherwise keep one phase of an alternating signal as if it were the air.
+ * Inputs must be finite; they are never modified.
+ */
+export function detectAlternatingTemperature(
+  temperatureK: Float64Array,
+  options: AlternatingTemperatureOptions = DEFAULT_ALTERNATING_TEMPERATURE_OPTIONS,
+): AlternatingTemperature | null {
+  const n = temperatureK.length;
+  let zigzagCount = 0;
+  let longestRun = 0;
+  let run = 0;
+  let firstIndex = -1;
+  for (let i = 1; i + 1 < n; i++) {
+    const before = (temperatureK[i] as number) - (temperatureK[i - 1] as number);
+    const after = (temperatureK[i + 1] as number) - (temperatureK[i] as number);
+    if (Math.abs(before) >= options.minStepK && Math.abs(after) >= options.minStepK && Math.sign(before) !== Math.sign(after)) {
+      zigzagCount++;
+      run++;
+      if (run > longestRun) longestRun = run;
+      if (firstIndex < 0) firstIndex = i;
+    } else {
+      run = 0;
+    }
+  }
+  const scattered = zigzagCount >= Math.max(options.minCount, options.minShare * n);
+  return longestRun >= options.minRun || scattered ? { zigzagCount, longestRun, firstIndex } : null;
+}

@@ -142,6 +142,19 @@ function surfacePoint(series: CleanSeries, from: number, to: number, groundM: nu
 
 const nullable = (v: number): number | null => (Number.isFinite(v) ? v : null);
 
+/** QC flags of a faulty temperature sensor: a tropopause found in such a profile does not count. */
+export const SENSOR_FAULT_FLAGS: readonly string[] = ["temperature-stuck", "temperature-alternating"];
+
+/**
+ * A found tropopause becomes "undetermined" (its altitude kept as the candidate) when the
+ * temperature sensor looked stuck or alternating: an isothermal stretch or a kink made by the
+ * fault would otherwise pass the WMO test.
+ */
+function distrustTropopause(result: TropopauseResult, faults: readonly string[]): TropopauseResult {
+  if (faults.length === 0 || result.status !== "found") return result;
+  return { status: "undetermined", reason: `the temperature sensor looks faulty (${faults.join(", ")})`, candidateAltitudeM: result.altitudeM };
+}
+
 function analyse(input: FlightAnalysisInput): FlightAnalysis {
   const { parameters, warnings: parameterWarnings } = resolveAnalysisParameters(input.parameters);
   const qc: QcReport = { removed: emptyRemoved(), timeOrder: "monotonic", flags: [], warnings: [...parameterWarnings] };
@@ -217,7 +230,9 @@ function analyse(input: FlightAnalysisInput): FlightAnalysis {
 
   const launchAltitudeM = segments.launchAltitudeM;
   const seriesView = { ...series, temperatureK };
-  const tropopause = findTropopauses(ascentLevels, parameters.tropopauseSearchFloorM);
+  const sensorFaults = SENSOR_FAULT_FLAGS.filter((f) => qc.flags.includes(f));
+  const foundTropopause = findTropopauses(ascentLevels, parameters.tropopauseSearchFloorM);
+  const tropopause = { first: distrustTropopause(foundTropopause.first, sensorFaults), second: distrustTropopause(foundTropopause.second, sensorFaults) };
   const ascent = computePhaseLayers({
     phase: "ascent",
     levels: ascentLevels,
@@ -231,13 +246,13 @@ function analyse(input: FlightAnalysisInput): FlightAnalysis {
   const layers: LayerStat[] = [...ascent.layers];
   qc.warnings.push(...ascent.warnings);
   if (hasDescent) {
-    const descentTropopause = findTropopauses(descentLevels, parameters.tropopauseSearchFloorM);
+    const descentTropopause = distrustTropopause(findTropopauses(descentLevels, parameters.tropopauseSearchFloorM).first, sensorFaults);
     const landingAltitudeM = landingIndex !== null ? (series.altitudeM[landingIndex] as number) : null;
     const descent = computePhaseLayers({
       phase: "descent",
       levels: descentLevels,
       surface: landingAltitudeM === null ? null : surfacePoint(seriesView, burstIndex + 1, endIndex + 1, landingAltitudeM),
-      tropopause: descentTropopause.first,
+      tropopause: descentTropopause,
       fixedBandsM: parameters.fixedBandsM,
       binSizeM: binM,
       inversionMergeGapM: parameters.inversionMergeGapM,

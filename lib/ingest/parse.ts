@@ -131,6 +131,8 @@ export async function parseLoggerFile(bytes: Uint8Array, layout: LoggerLayoutSpe
   let dayOffsetS = 0;
   let previousElapsedS: number | null = null;
   let dataRowCount = 0;
+  // Fields a row may have: the header's count, or the first data row's when there is no header.
+  let expectedFieldCount: number | null = null;
   let stopped = false;
   const clockDate = options.clockDateUtc ?? null;
 
@@ -143,13 +145,15 @@ export async function parseLoggerFile(bytes: Uint8Array, layout: LoggerLayoutSpe
     if (stopped) return;
     if (!columns) {
       header = record;
+      expectedFieldCount = record.length;
       columns = resolveColumns(layout, header, fileName, line);
       return;
     }
     dataRowCount++;
+    expectedFieldCount ??= record.length;
     const values: Partial<Record<LayoutColumnKey, number | null>> = {};
-    let rowIssue: IngestIssue | null = null;
-    for (const column of columns) {
+    let rowIssue: IngestIssue | null = longRowIssue(record, expectedFieldCount, layout, header !== null, fileName, line);
+    for (const column of rowIssue ? [] : columns) {
       const field = record[column.index];
       if (field === undefined) {
         rowIssue = {
@@ -268,6 +272,29 @@ export async function parseLoggerFile(bytes: Uint8Array, layout: LoggerLayoutSpe
     header,
     dataRowCount,
     skippedRows,
+  };
+}
+
+/**
+ * A row with more fields than the header (or, without a header, than the first data row) is
+ * refused: its values no longer sit under their column names. Typical of decimal commas read
+ * with a comma delimiter ("12,5" becomes two fields). Empty fields at the end of a row (a
+ * trailing delimiter) are not counted [P].
+ */
+function longRowIssue(record: string[], expectedFieldCount: number, layout: LoggerLayoutSpec, hasHeader: boolean, fileName: string, line: number): IngestIssue | null {
+  if (record.length <= expectedFieldCount) return null;
+  let fieldCount = record.length;
+  while (fieldCount > expectedFieldCount && (record[fieldCount - 1] ?? "").trim() === "") fieldCount--;
+  if (fieldCount <= expectedFieldCount) return null;
+  const reference = hasHeader ? "the header row has" : "the first data row has";
+  const hint =
+    layout.delimiter === "comma" && layout.decimalSeparator === "."
+      ? " Does the file use decimal commas (12,5)? Then it needs a layout with another delimiter and the decimal comma."
+      : " Is the delimiter or the decimal separator of the layout right?";
+  return {
+    code: "long-row",
+    message: `The row has ${fieldCount} fields but ${reference} ${expectedFieldCount}, so its values cannot be matched to the columns.${hint}`,
+    file: fileName, line, column: expectedFieldCount + 1, columnName: null,
   };
 }
 

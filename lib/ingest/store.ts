@@ -234,7 +234,10 @@ async function chooseCalibration(
 
 /**
  * Flags that describe a flight rather than a quality problem: they don't mark the flight as
- * QC-flagged (climatology can exclude QC-flagged flights).
+ * QC-flagged (climatology can exclude QC-flagged flights). "altitude-from-pressure" is here
+ * because it covers rows without an altitude reading and a few GPS glitch rows; an altitude column
+ * that is often impossible raises "implausible-altitudes" instead, and a faulty temperature sensor
+ * "temperature-stuck" or "temperature-alternating" — none of those is informational.
  */
 export const INFORMATIONAL_FLAGS = new Set(["no-landing", "lag-corrected", "no-tropopause", "tropopause-undetermined", "altitude-from-pressure"]);
 

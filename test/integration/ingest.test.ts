@@ -1,10 +1,15 @@
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { IngestFailure, ingestFlightFile } from "../../lib/ingest/index.ts";
+import type { Viewer } from "../../lib/auth/visibility.ts";
+import { createLayout, IngestFailure, ingestFlightFile } from "../../lib/ingest/index.ts";
+import { ClimatologyQueryError, getClimatology } from "../../lib/query/climatology.ts";
+import { parseClimatologyQuery } from "../../lib/query/climatology-params.ts";
 import { sha256Hex } from "../../lib/ingest/pipeline.ts";
 import { generateDemoProgram } from "../../seed/demo-program.ts";
 import { loadDemoProgram } from "../../seed/load.ts";
 import { makeFlightFile, setUpSchool } from "../support/flight-files.ts";
 import { createTestDatabase, testEngines, type TestDatabase } from "../support/test-databases.ts";
+
+const LOCAL: Viewer = { kind: "local" };
 
 describe.each(testEngines())("ingest on %s", (engine) => {
   let database: TestDatabase;
@@ -44,6 +49,14 @@ describe.each(testEngines())("ingest on %s", (engine) => {
   const headerIndex = lines.findIndex((l) => l.startsWith("seconds"));
   const firstDataLine = headerIndex + 2; // 1-based line number of the first data row
 
+  const headerFields = lines[headerIndex]!.split(",");
+  /** The fixture with each data row's fields edited (row = 0 for the first data row). */
+  const editRows = (text: string, edit: (fields: string[], row: number) => string[]) => {
+    const all = text.split("\n");
+    const at = all.findIndex((l) => l.startsWith("seconds"));
+    return all.map((l, i) => (i > at && l !== "" ? edit(l.split(","), i - at - 1).join(",") : l)).join("\n");
+  };
+
   // Each malformed file: what to upload, the expected error code, and where it must point.
   const malformed: Array<{ name: string; bytes: () => Uint8Array; code: string; line?: number; column?: number; meta?: Record<string, unknown>; maxBytes?: number }> = [
     { name: "empty.csv", bytes: () => new Uint8Array(), code: "empty-file" },
@@ -78,14 +91,25 @@ describe.each(testEngines())("ingest on %s", (engine) => {
       meta: { sensorId: undefined, calibrationId: "__direct_kelvin__" },
     },
     {
+      // "612,5" for a reading of 612.5 read with a comma layout: every data row has one field too many.
+      name: "decimal-comma-as-comma.csv",
+      bytes: () => encode(lines.map((l, i) => (i > headerIndex && l !== "" ? `${l},5` : l)).join("\n")),
+      code: "bad-rows", line: firstDataLine, column: headerFields.length + 1,
+    },
+    {
+      name: "one-long-row.csv",
+      bytes: () => encode(lines.map((l, i) => (i === firstDataLine + 29 ? `${l},0` : l)).join("\n")),
+      code: "bad-rows", line: firstDataLine + 30, column: headerFields.length + 1,
+    },
+    {
       name: "no-ascent.csv",
       bytes: () => encode(lines.map((l) => l.replace(/^(\d+),([^,]+),/, "$1,200.0,")).join("\n")),
       code: "analysis-failed",
     },
   ];
 
-  test("at least 15 malformed files are covered", () => {
-    expect(malformed.length).toBeGreaterThanOrEqual(15);
+  test("at least 19 malformed files are covered", () => {
+    expect(malformed.length).toBeGreaterThanOrEqual(19);
   });
 
   test.each(malformed)("$name is refused with $code and writes nothing", async (m) => {
@@ -118,6 +142,87 @@ describe.each(testEngines())("ingest on %s", (engine) => {
     await database.db.flight.delete({ where: { id: result.flightId } });
     await database.db.rawFile.deleteMany();
     await database.db.auditEvent.deleteMany();
+  });
+
+  test("lenient mode skips rows longer than the header, each with its line, and QC-flags the flight", async () => {
+    const bad = encode(lines.map((l, i) => (i === firstDataLine + 9 || i === firstDataLine + 49 ? `${l},5` : l)).join("\n"));
+    const result = await ingestFlightFile(database.db, { file: { name: "lenient-long.csv", bytes: bad }, metadata: metadata({ mode: "lenient" }) });
+    expect(result.skippedRowCount).toBe(2);
+    expect(result.warnings.some((w) => w.code === "skipped-rows" && w.message.includes(`line ${firstDataLine + 10}`) && w.message.includes("fields"))).toBe(true);
+    const summary = await database.db.flightSummary.findFirstOrThrow({ where: { flightId: result.flightId, isCurrent: true } });
+    expect(summary.qcFlagged).toBe(true);
+    await database.db.flight.delete({ where: { id: result.flightId } });
+    await database.db.rawFile.deleteMany();
+    await database.db.auditEvent.deleteMany();
+  });
+
+  // Files that parse but carry a faulty sensor: stored, QC-flagged, and left out of climatology by default.
+  const pressureFile = makeFlightFile({ seed: 11, withPressure: true });
+  const column = (name: string) => headerFields.indexOf(name);
+  const countsAt = (fields: string[]) => Number(fields[column("temp_counts")]);
+  const altitudeAt = (fields: string[]) => Number(fields[column("gps_alt_m")]);
+  const withField = (fields: string[], index: number, value: string) => fields.map((f, i) => (i === index ? value : f));
+  const stuckFrom = (fromM: number) => {
+    let frozen: string | null = null;
+    return (fields: string[]) => {
+      if (altitudeAt(fields) >= fromM) frozen ??= fields[column("temp_counts")]!;
+      return frozen === null ? fields : withField(fields, column("temp_counts"), frozen);
+    };
+  };
+  const pressureColumn = (name: string) => pressureFile.text.split("\n").find((l) => l.startsWith("seconds"))!.split(",").indexOf(name);
+  const flagged: Array<{ name: string; text: () => string; flag: string; pressure?: boolean; sensorFault: boolean }> = [
+    { name: "stuck-above-6km.csv", text: () => editRows(file.text, stuckFrom(6000)), flag: "temperature-stuck", sensorFault: true },
+    { name: "constant-temperature.csv", text: () => editRows(file.text, stuckFrom(-1e9)), flag: "temperature-stuck", sensorFault: true },
+    {
+      // 60 counts of a 10-bit, 10 mV/K logger ≈ 29 K (REFERENCE.md §7 [D]) on every other row above 3 km
+      name: "alternating-temperature.csv",
+      text: () => editRows(file.text, (f, row) => (altitudeAt(f) >= 3000 && row % 2 === 1 ? withField(f, column("temp_counts"), String(countsAt(f) + 60)) : f)),
+      flag: "temperature-alternating", sensorFault: true,
+    },
+    {
+      name: "altitude-x400.csv", pressure: true, flag: "implausible-altitudes", sensorFault: false,
+      text: () => editRows(pressureFile.text, (f) => withField(f, pressureColumn("gps_alt_m"), (Number(f[pressureColumn("gps_alt_m")]) * 400).toFixed(1))),
+    },
+    {
+      name: "negative-altitude.csv", pressure: true, flag: "implausible-altitudes", sensorFault: false,
+      text: () => editRows(pressureFile.text, (f) => withField(f, pressureColumn("gps_alt_m"), (-Number(f[pressureColumn("gps_alt_m")]) - 1000).toFixed(1))),
+    },
+  ];
+
+  test.each(flagged)("$name is stored QC-flagged ($flag) and climatology leaves it out by default", async (f) => {
+    const db = database.db;
+    const layoutId = f.pressure ? (await createLayout(db, { schoolId: ids.school.id, spec: pressureFile.layout })).id : ids.layout.id;
+    const result = await ingestFlightFile(db, { file: { name: f.name, bytes: encode(f.text()) }, metadata: metadata({ layoutId, title: f.name }) });
+    try {
+      const summary = await db.flightSummary.findFirstOrThrow({ where: { flightId: result.flightId, isCurrent: true } });
+      expect(summary.qcFlags.split(",")).toContain(f.flag);
+      expect(summary.qcFlagged).toBe(true);
+      expect(result.warnings.some((w) => w.code === f.flag)).toBe(true);
+      if (f.sensorFault) {
+        // A tropopause "found" in a faulty temperature profile does not count, even with QC-flagged flights included.
+        expect(summary.tropopauseAltitudeM).toBeNull();
+        expect(summary.tropopauseStatus).toBe("undetermined");
+      } else {
+        // The pressure fallback is kept: the profile still reaches the fixture's 20 km burst.
+        expect(Math.abs((summary.burstAltitudeM ?? 0) - 20_000)).toBeLessThan(300); // fixture truth, hypsometric [D]
+      }
+      const titles = async (qc: "exclude" | "include") => {
+        const parsed = parseClimatologyQuery({ groupBy: "none", ...(qc === "include" ? { qc } : {}) });
+        if (!parsed.ok) throw new Error(parsed.message);
+        const climatology = await getClimatology(LOCAL, parsed.query, database).catch((e: unknown) => {
+          if (e instanceof ClimatologyQueryError) return null;
+          throw e;
+        });
+        return climatology?.groups.flatMap((g) => g.flights.map((x) => x.title)) ?? [];
+      };
+      expect(await titles("exclude")).not.toContain(f.name);
+      expect(await titles("include")).toContain(f.name);
+    } finally {
+      await db.flight.delete({ where: { id: result.flightId } });
+      await db.rawFile.deleteMany();
+      await db.auditEvent.deleteMany();
+      if (f.pressure) await db.loggerLayout.delete({ where: { id: layoutId } });
+    }
   });
 
   test("a failure after some writes leaves no partial flight", async () => {
@@ -189,6 +294,9 @@ describe.each(testEngines())("ingest on %s", (engine) => {
         const flight = await fresh.db.flight.findFirstOrThrow({ where: { title: f.title }, include: { rawFile: true, summaries: true } });
         expect(Buffer.from(flight.rawFile.bytes).equals(Buffer.from(f.content))).toBe(true);
         const summary = flight.summaries[0]!;
+        // The demo stays unflagged: no faulty-sensor or implausible-altitude flag, nothing climatology would drop.
+        expect(summary.qcFlags).not.toMatch(/temperature-stuck|temperature-alternating|implausible-altitudes/);
+        expect(summary.qcFlagged).toBe(false);
         // The generator's own truth for that invented flight: tropopause within 400 m, lapse rate within 0.8 K/km.
         if (summary.tropopauseAltitudeM !== null) expect(Math.abs(summary.tropopauseAltitudeM - f.truth.tropopauseAltitudeM)).toBeLessThan(400);
         expect(Math.abs((summary.troposphericLapseRateKPerKm ?? 0) - f.truth.lapseRateKPerKm)).toBeLessThan(0.8);

@@ -1,10 +1,13 @@
-import { COMMA_COUNTS_LAYOUT, LINEAR_10BIT_CALIBRATION, renderLoggerFile } from "../../seed/demo-files.ts";
+import { COMMA_COUNTS_LAYOUT, COMMA_COUNTS_MET_LAYOUT, LINEAR_10BIT_CALIBRATION, renderLoggerFile } from "../../seed/demo-files.ts";
 import { generateFlightProfile, type FlightProfileParams } from "../../seed/demo-profiles.ts";
 import type { Db } from "../../lib/db/index.ts";
 import { createCalibration, createLayout, createPayload, createSchool, createSensor, createSite } from "../../lib/ingest/index.ts";
 
-/** Invented flight (fixture data, not a real sounding): layout A, 10 mV/K sensor on a 10-bit ADC. */
-export function makeFlightFile(options: { seed?: number; burstAltitudeM?: number; tropopauseAltitudeM?: number } = {}) {
+/**
+ * Invented flight (fixture data, not a real sounding): layout A, 10 mV/K sensor on a 10-bit ADC;
+ * with `withPressure`, layout A with its pressure and humidity board (COMMA_COUNTS_MET_LAYOUT).
+ */
+export function makeFlightFile(options: { seed?: number; burstAltitudeM?: number; tropopauseAltitudeM?: number; withPressure?: boolean } = {}) {
   const params: FlightProfileParams = {
     atmosphere: {
       surfaceAltitudeM: 200, surfaceTemperatureK: 290, lapseRateKPerKm: 6.5,
@@ -14,11 +17,12 @@ export function makeFlightFile(options: { seed?: number; burstAltitudeM?: number
     },
     latitudeDeg: 48.1, longitudeDeg: 9.2, ascentRateMPerS: 5, burstAltitudeM: options.burstAltitudeM ?? 20_000,
     descent: null, preLaunchS: 60, postLandingS: 0, sampleIntervalS: 2, sensorTimeConstantS: 1, sensorNoiseK: 0.1,
-    gpsSpikeCount: 0, hasPressure: false, hasHumidity: false,
+    gpsSpikeCount: 0, hasPressure: options.withPressure === true, hasHumidity: options.withPressure === true,
   };
   const profile = generateFlightProfile(params, options.seed ?? 7);
-  const text = renderLoggerFile(COMMA_COUNTS_LAYOUT, profile.samples, { calibration: LINEAR_10BIT_CALIBRATION, fileStartUtcMs: Date.UTC(2024, 6, 10, 6, 0, 0) });
-  return { text, bytes: new TextEncoder().encode(text), truth: profile.truth, launchAtUtc: new Date(Date.UTC(2024, 6, 10, 6, 1, 0)) };
+  const layout = options.withPressure ? COMMA_COUNTS_MET_LAYOUT : COMMA_COUNTS_LAYOUT;
+  const text = renderLoggerFile(layout, profile.samples, { calibration: LINEAR_10BIT_CALIBRATION, fileStartUtcMs: Date.UTC(2024, 6, 10, 6, 0, 0) });
+  return { text, layout, bytes: new TextEncoder().encode(text), truth: profile.truth, launchAtUtc: new Date(Date.UTC(2024, 6, 10, 6, 1, 0)) };
 }
 
 /** One invented school with a site, payload, sensor + calibration and layout A. */

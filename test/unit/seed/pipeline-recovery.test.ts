@@ -46,3 +46,25 @@ describe("analysis of demo flights recovers their truth", () => {
     if (flight.truth.surfaceInversionDepthM === 0) expect(summary.hasSurfaceInversion).toBe(false);
   });
 });
+
+test("no demo flight looks like a faulty sensor or an implausible altitude column", async () => {
+  // The demo's quantised thermistors hold one count for up to ~70 rows near a cold tropopause, and a few
+  // GPS spikes fall below −500 m: neither may be taken for a fault (the demo must stay unflagged).
+  const faultFlags = ["temperature-stuck", "temperature-alternating", "implausible-altitudes"];
+  const flagged: string[] = [];
+  for (const flight of program.flights) {
+    const layout = program.layouts.find((l) => l.key === flight.layoutKey)?.spec;
+    const sensor = program.sensors.find((s) => s.key === flight.sensorKey);
+    const site = program.sites.find((s) => s.key === flight.siteKey);
+    const launchMs = Date.parse(flight.launchAtUtc);
+    const calibration = sensor?.calibrations.find(
+      (c) => Date.parse(c.validFromUtc) <= launchMs && (c.validToUtc === null || launchMs < Date.parse(c.validToUtc)),
+    );
+    if (!layout || !site || !calibration) throw new Error(`incomplete demo flight ${flight.key}`);
+    const parsed = await parseLoggerFile(flight.content, layout, { fileName: flight.fileName, mode: "strict", clockDateUtc: new Date(launchMs) });
+    const analysis = analyseFlight({ samples: parsed.samples, calibration: calibration.spec, site });
+    for (const flag of analysis.qc.flags) if (faultFlags.includes(flag)) flagged.push(`${flight.key}: ${flag}`);
+  }
+  expect(program.flights.length).toBeGreaterThanOrEqual(120);
+  expect(flagged).toEqual([]);
+}, 120_000);
