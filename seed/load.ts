@@ -1,4 +1,5 @@
-import type { Db } from "../lib/db/index.ts";
+import type { Db, DbHandle } from "../lib/db/index.ts";
+import { DEMO_ACTOR } from "../lib/ingest/demo-data.ts";
 import { createCalibration, createLayout, createPayload, createSchool, createSensor, createSite, ingestFlightFile, IngestFailure } from "../lib/ingest/index.ts";
 import { DEFAULT_DEMO_SEED, generateDemoProgram, type DemoProgram } from "./demo-program.ts";
 
@@ -11,7 +12,9 @@ export interface DemoLoadReport {
 
 /**
  * Loads the invented demo program into an empty database through the real setup writers and
- * the real ingest pipeline (the same code path as an upload). `onProgress` is called per flight.
+ * the real ingest pipeline (the same code path as an upload). Every flight is stored as invented
+ * (`synthetic`); `removeDemoProgram` (lib/ingest/demo-data.ts) takes it all out again.
+ * `onProgress` is called per flight.
  */
 export async function loadDemoProgram(
   db: Db,
@@ -19,7 +22,7 @@ export async function loadDemoProgram(
 ): Promise<DemoLoadReport> {
   const program = options.program ?? generateDemoProgram(options.seed ?? DEFAULT_DEMO_SEED);
   const schoolIds = new Map<string, string>();
-  for (const school of program.schools) schoolIds.set(school.key, (await createSchool(db, { name: school.name })).id);
+  for (const school of program.schools) schoolIds.set(school.key, (await createSchool(db, { name: school.name }, DEMO_ACTOR)).id);
   const id = (map: Map<string, string>, key: string, what: string) => {
     const value = map.get(key);
     if (!value) throw new Error(`Demo program refers to unknown ${what} "${key}"`);
@@ -29,13 +32,13 @@ export async function loadDemoProgram(
   const siteIds = new Map<string, string>();
   for (const site of program.sites) {
     const { key, schoolKey, ...rest } = site;
-    siteIds.set(key, (await createSite(db, { ...rest, schoolId: id(schoolIds, schoolKey, "school") })).id);
+    siteIds.set(key, (await createSite(db, { ...rest, schoolId: id(schoolIds, schoolKey, "school") }, DEMO_ACTOR)).id);
   }
   const payloadIds = new Map<string, string>();
   const payloadSchool = new Map<string, string>();
   for (const payload of program.payloads) {
     const schoolId = id(schoolIds, payload.schoolKey, "school");
-    payloadIds.set(payload.key, (await createPayload(db, { schoolId, name: payload.name })).id);
+    payloadIds.set(payload.key, (await createPayload(db, { schoolId, name: payload.name }, DEMO_ACTOR)).id);
     payloadSchool.set(payload.key, schoolId);
   }
   const sensorIds = new Map<string, string>();
@@ -45,10 +48,10 @@ export async function loadDemoProgram(
       schoolId, serial: sensor.serial, kind: sensor.kind, timeConstantS: sensor.timeConstantS,
       payloadId: id(payloadIds, sensor.payloadKey, "payload"),
       mountedFromUtc: sensor.mountedFromUtc, mountedToUtc: sensor.mountedToUtc,
-    });
+    }, DEMO_ACTOR);
     sensorIds.set(sensor.key, created.id);
     for (const calibration of sensor.calibrations) {
-      await createCalibration(db, { sensorId: created.id, ...calibration });
+      await createCalibration(db, { sensorId: created.id, ...calibration }, DEMO_ACTOR);
     }
   }
   // Layouts belong to a school: create each one for every school whose flights use it.
@@ -58,7 +61,7 @@ export async function loadDemoProgram(
     if (layoutIds.has(mapKey)) continue;
     const layout = program.layouts.find((l) => l.key === flight.layoutKey);
     if (!layout) throw new Error(`Demo flight ${flight.key} uses unknown layout ${flight.layoutKey}`);
-    layoutIds.set(mapKey, (await createLayout(db, { schoolId: id(schoolIds, flight.schoolKey, "school"), spec: layout.spec })).id);
+    layoutIds.set(mapKey, (await createLayout(db, { schoolId: id(schoolIds, flight.schoolKey, "school"), spec: layout.spec }, DEMO_ACTOR)).id);
   }
 
   const failures: DemoLoadReport["failures"] = [];
@@ -78,7 +81,9 @@ export async function loadDemoProgram(
           visibility: "program",
           mode: "strict",
         },
-        actor: { userId: null, label: "demo loader" },
+        actor: DEMO_ACTOR,
+        // Invented data: the archive, flight page, climatology and every export say so.
+        synthetic: true,
       });
     } catch (error) {
       failures.push({ fileName: flight.fileName, message: error instanceof IngestFailure ? error.message : String(error) });
@@ -87,4 +92,24 @@ export async function loadDemoProgram(
     options.onProgress?.(done, program.flights.length, flight.fileName);
   }
   return { schools: program.schools.length, sites: program.sites.length, flights: done - failures.length, failures };
+}
+
+export type DemoAutoload =
+  | { loaded: true; report: DemoLoadReport }
+  | { loaded: false; reason: "skipped" | "not-sqlite" | "not-empty" };
+
+/**
+ * `npm start`'s demo: loaded only into an embedded SQLite database that holds nothing yet (no
+ * school, user or flight), so a shared PostgreSQL archive never gets invented flights unasked
+ * (there, `npm run lapsebank -- demo` loads them) and real data is never mixed with the demo.
+ */
+export async function autoloadDemo(
+  handle: Pick<DbHandle, "db" | "engine">,
+  options: { skip?: boolean; program?: DemoProgram; onProgress?: (done: number, total: number, fileName: string) => void } = {},
+): Promise<DemoAutoload> {
+  if (options.skip) return { loaded: false, reason: "skipped" };
+  if (handle.engine !== "sqlite") return { loaded: false, reason: "not-sqlite" };
+  const [schools, users, flights] = await Promise.all([handle.db.school.count(), handle.db.user.count(), handle.db.flight.count()]);
+  if (schools + users + flights > 0) return { loaded: false, reason: "not-empty" };
+  return { loaded: true, report: await loadDemoProgram(handle.db, { program: options.program, onProgress: options.onProgress }) };
 }

@@ -60,7 +60,7 @@ export async function saveSite(input: z.input<typeof siteFormSchema>): Promise<A
       return actionOk({ id });
     }
     if (!(await mayEdit(data.schoolId))) return actionFailure(NOT_ALLOWED);
-    const site = await createSite(db, siteInputSchema.parse(data));
+    const site = await createSite(db, siteInputSchema.parse(data), await currentActor("web setup"));
     refreshSetup();
     return actionOk({ id: site.id });
   } catch (error) {
@@ -120,7 +120,7 @@ export async function savePayload(input: z.input<typeof payloadFormSchema>): Pro
       return actionOk({ id });
     }
     if (!(await mayEdit(schoolId))) return actionFailure(NOT_ALLOWED);
-    const payload = await createPayload(db, payloadInputSchema.parse({ ...data, schoolId }));
+    const payload = await createPayload(db, payloadInputSchema.parse({ ...data, schoolId }), await currentActor("web setup"));
     refreshSetup();
     return actionOk({ id: payload.id });
   } catch (error) {
@@ -147,7 +147,7 @@ export async function saveSensor(input: z.input<typeof sensorFormSchema>): Promi
       return actionOk({ id });
     }
     if (!(await mayEdit(schoolId))) return actionFailure(NOT_ALLOWED);
-    const sensor = await createSensor(db, sensorInputSchema.parse({ ...data, schoolId }));
+    const sensor = await createSensor(db, sensorInputSchema.parse({ ...data, schoolId }), await currentActor("web setup"));
     refreshSetup();
     return actionOk({ id: sensor.id });
   } catch (error) {
@@ -205,9 +205,10 @@ export async function saveCalibration(input: { id?: string; calibration: unknown
       if (!existing || existing.sensorId !== sensor.id) return actionFailure("That calibration does not belong to this sensor");
     }
     const saved = await db.$transaction(async (tx) => {
-      const row = id ? await updateCalibration(tx, id, parsed.data) : await createCalibration(tx, parsed.data);
+      if (!id) return createCalibration(tx, parsed.data, actor);
+      const row = await updateCalibration(tx, id, parsed.data);
       await tx.auditEvent.create({
-        data: { actorUserId: actor.userId, actorLabel: actor.label, schoolId: sensor.schoolId, action: id ? "calibration.update" : "calibration.create", entityType: "calibration", entityId: row.id, details: { method: row.method } },
+        data: { actorUserId: actor.userId, actorLabel: actor.label, schoolId: sensor.schoolId, action: "calibration.update", entityType: "calibration", entityId: row.id, details: { method: row.method } },
       });
       return row;
     });
@@ -249,7 +250,7 @@ export async function saveLayout(input: { id?: string; schoolId: string; spec: u
       return actionOk({ id, affectedFlightCount: (await selectFlights(db, { layoutId: id })).length });
     }
     if (!(await mayEdit(schoolId))) return actionFailure(NOT_ALLOWED);
-    const layout = await createLayout(db, { schoolId, spec });
+    const layout = await createLayout(db, { schoolId, spec }, await currentActor("web setup"));
     refreshSetup();
     return actionOk({ id: layout.id, affectedFlightCount: 0 });
   } catch (error) {

@@ -6,6 +6,8 @@ import { getProgramSettings } from "@/lib/ingest/setup-reads";
 import { getViewer } from "@/app/_lib/viewer";
 import { can } from "@/lib/auth/permissions";
 import { NewSchoolForm } from "./_components/new-school-form";
+import { RemoveDemoForm } from "./_components/remove-demo-form";
+import { getDemoPresence } from "@/lib/query/demo";
 import { membersOnly } from "@/app/setup/_lib/members-only";
 
 export const metadata: Metadata = { title: "Setup" };
@@ -15,7 +17,8 @@ export default async function SetupPage() {
   if (gate) return gate;
   await connection();
   const viewer = await getViewer();
-  const [schools, settings] = await Promise.all([listSetupSchools(), getProgramSettings()]);
+  const [schools, settings, demo] = await Promise.all([listSetupSchools(), getProgramSettings(), getDemoPresence()]);
+  const isProgramAdmin = can(viewer, "program.settings", { schoolId: null });
   const p = settings.parameters;
   return (
     <>
@@ -44,8 +47,9 @@ export default async function SetupPage() {
           </tbody>
         </table>
       </div>
-      {schools.length === 0 && <p className="notice notice-warn">No school exists yet: add one below, or load the invented demo program with <code>npm run lapsebank -- demo --yes</code>.</p>}
-      {can(viewer, "program.settings", { schoolId: null }) && <NewSchoolForm />}
+      {schools.length === 0 && <p className="notice notice-warn">No school exists yet: add one below, or load the invented demo program with <code>npm run lapsebank -- demo</code>.</p>}
+      {isProgramAdmin && <NewSchoolForm />}
+      {isProgramAdmin && demo.flights + demo.schools > 0 && <RemoveDemoForm flights={demo.flights} />}
       <h2>Analysis parameters</h2>
       <p>
         Bin size {p.binSizeM} m, tropopause search from {p.tropopauseSearchFloorM} m, lag correction {p.lagCorrection.enabled ? `on (τ = ${p.lagCorrection.timeConstantS} s)` : "off"},

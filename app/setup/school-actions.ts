@@ -5,7 +5,7 @@ import { z } from "zod";
 import { can } from "@/lib/auth/permissions";
 import { getDb } from "@/lib/db";
 import { createSchool, schoolInputSchema } from "@/lib/ingest";
-import { getViewer } from "@/app/_lib/viewer";
+import { currentActor, getViewer } from "@/app/_lib/viewer";
 
 export type SchoolFormState = { ok: boolean; message: string } | null;
 
@@ -17,8 +17,7 @@ export async function createSchoolAction(_: SchoolFormState, formData: FormData)
   if (!parsed.success) return { ok: false, message: z.prettifyError(parsed.error) };
   const db = getDb();
   try {
-    const school = await createSchool(db, parsed.data);
-    await db.auditEvent.create({ data: { actorUserId: viewer.kind === "member" ? viewer.userId : null, actorLabel: viewer.kind === "member" ? (viewer.email ?? "") : viewer.kind, schoolId: school.id, action: "school.create", entityType: "school", entityId: school.id } });
+    const school = await createSchool(db, parsed.data, await currentActor("web setup"));
     if (viewer.kind === "member") {
       await db.membership.create({ data: { userId: viewer.userId, schoolId: school.id, role: "school-admin" } });
     }

@@ -8,7 +8,7 @@ import {
   ingestFlightFile, layoutInputSchema, loggerLayoutSpecSchema, OverlappingCalibrationError, parseLoggerFile, payloadInputSchema,
   sensorInputSchema, siteInputSchema, suggestLayout, type IngestIssue, type LayoutSuggestion, type LoggerLayoutSpec,
 } from "@/lib/ingest";
-import { getViewer } from "@/app/_lib/viewer";
+import { currentActor, getViewer } from "@/app/_lib/viewer";
 import { can, type Action } from "@/lib/auth/permissions";
 import { readingViewer, type Viewer } from "@/lib/auth/visibility";
 import type { UploadChoices } from "@/lib/query/setup";
@@ -202,7 +202,7 @@ export async function createSiteFromForm(formData: FormData): Promise<ActionResu
     elevationM: numberOrUndefined(formData.get("elevationM")), timeZone: formData.get("timeZone"),
   });
   if (!parsed.success) return zodFailure(parsed.error);
-  const site = await createSite(getDb(), parsed.data);
+  const site = await createSite(getDb(), parsed.data, await currentActor("web upload"));
   revalidatePath("/upload");
   return { ok: true, data: { id: site.id, schoolId: site.schoolId, name: site.name, latitudeDeg: site.latitudeDeg, longitudeDeg: site.longitudeDeg, elevationM: site.elevationM, timeZone: site.timeZone } };
 }
@@ -213,7 +213,7 @@ export async function createPayloadFromForm(formData: FormData): Promise<ActionR
   if (refused) return refused;
   const parsed = payloadInputSchema.safeParse({ schoolId: formData.get("schoolId"), name: formData.get("name"), notes: formData.get("notes") ?? "" });
   if (!parsed.success) return zodFailure(parsed.error);
-  const payload = await createPayload(getDb(), parsed.data);
+  const payload = await createPayload(getDb(), parsed.data, await currentActor("web upload"));
   revalidatePath("/upload");
   return { ok: true, data: { id: payload.id, schoolId: payload.schoolId, name: payload.name } };
 }
@@ -224,7 +224,7 @@ export async function saveLoggerLayout(input: { schoolId: string; spec: LoggerLa
   if (refused) return refused;
   const parsed = layoutInputSchema.safeParse(input);
   if (!parsed.success) return zodFailure(parsed.error, "The layout is not complete");
-  const layout = await createLayout(getDb(), parsed.data);
+  const layout = await createLayout(getDb(), parsed.data, await currentActor("web upload"));
   revalidatePath("/upload");
   return { ok: true, data: { id: layout.id, schoolId: layout.schoolId, name: layout.name, spec: layout.spec } };
 }
@@ -253,6 +253,7 @@ export async function saveSensorCalibration(input: z.input<typeof sensorWithCali
   if (refused) return refused;
   if (!sensorId && !sensor) return failure("Describe the new sensor or choose an existing one", { fieldErrors: { "sensor.serial": ["Give the sensor's serial"] } });
   const db = getDb();
+  const actor = await currentActor("web upload");
   try {
     const id = await db.$transaction(async (tx) => {
       let targetId = sensorId;
@@ -260,12 +261,12 @@ export async function saveSensorCalibration(input: z.input<typeof sensorWithCali
         const existing = await tx.sensor.findUnique({ where: { id: targetId } });
         if (!existing || existing.schoolId !== schoolId) throw new Error("That sensor does not belong to this school");
       } else if (sensor) {
-        targetId = (await createSensor(tx, { ...sensor, schoolId })).id;
+        targetId = (await createSensor(tx, { ...sensor, schoolId }, actor)).id;
       }
       if (!targetId) throw new Error("No sensor");
       const checked = calibrationInputSchema.safeParse({ ...calibration, sensorId: targetId });
       if (!checked.success) throw new CalibrationInputError(checked.error);
-      await createCalibration(tx, checked.data);
+      await createCalibration(tx, checked.data, actor);
       return targetId;
     });
     revalidatePath("/upload");

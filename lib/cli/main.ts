@@ -24,7 +24,9 @@ Usage: npm run lapsebank -- <command> [options]
 
 Commands:
   migrate                      apply the checked-in migrations to DATABASE_URL
-  demo [--yes]                 rebuild the demo archive (wipes the database first; asks for --yes)
+  demo                         load the invented demo archive into an empty database (any engine)
+  demo --yes                   wipe the database first, then load the demo archive
+  demo remove                  delete exactly the demo flights and the demo setup nothing else uses
   ingest <files...>            upload logger files through the same pipeline as the web
       --school ID --site ID --layout ID [--sensor ID] [--payload ID] [--calibration ID]
       [--launch ISO-UTC] [--visibility school|program|public] [--lenient] [--title TEXT]
@@ -73,11 +75,17 @@ async function main(argv: string[]): Promise<number> {
 }
 
 async function runDemo(args: string[], url: string): Promise<number> {
-  const { values } = parseArgs({ args, options: { yes: { type: "boolean", default: false } } });
+  const { values, positionals } = parseArgs({ args, allowPositionals: true, options: { yes: { type: "boolean", default: false } } });
+  const [sub, ...extra] = positionals;
+  if (sub === "remove" && extra.length === 0) return runDemoRemove();
+  if (sub !== undefined) {
+    console.error(`demo: unknown argument "${sub}" (use \`demo\`, \`demo --yes\` or \`demo remove\`)`);
+    return 2;
+  }
   const { db } = await getDbHandle();
   const existing = await db.flight.count();
   if (existing > 0 && !values.yes) {
-    console.error(`The database ${redactUrl(url)} holds ${existing} flights. \`demo --yes\` deletes everything and loads the demo archive.`);
+    console.error(`The database ${redactUrl(url)} holds ${existing} flights. \`demo --yes\` deletes everything and loads the demo archive; \`demo remove\` deletes only the demo.`);
     return 1;
   }
   const [{ resetDatabase }, { loadDemoProgram }] = await Promise.all([import("./reset.ts"), import("../../seed/load.ts")]);
@@ -87,9 +95,19 @@ async function runDemo(args: string[], url: string): Promise<number> {
     onProgress: (done, total, fileName) => process.stdout.write(`\rLoading demo flights ${done}/${total} ${fileName.padEnd(40)}`),
   });
   process.stdout.write("\n");
-  console.log(`Demo archive: ${report.schools} schools, ${report.sites} sites, ${report.flights} flights in ${((Date.now() - started) / 1000).toFixed(1)} s`);
+  console.log(`Demo archive (invented, labelled as such): ${report.schools} schools, ${report.sites} sites, ${report.flights} flights in ${((Date.now() - started) / 1000).toFixed(1)} s`);
   for (const f of report.failures) console.error(`  failed ${f.fileName}: ${f.message}`);
   return report.failures.length ? 1 : 0;
+}
+
+/** `demo remove`: the same lib function as the program admin's button on the Setup page. */
+async function runDemoRemove(): Promise<number> {
+  const { db } = await getDbHandle();
+  const [{ removeDemoProgram }, { LOCAL_VIEWER }] = await Promise.all([import("../ingest/demo-data.ts"), import("../auth/visibility.ts")]);
+  const report = await removeDemoProgram(db, LOCAL_VIEWER, { userId: null, label: "cli" });
+  console.log(`Demo removed: ${report.flights} flights, ${report.schools} schools, ${report.sites} sites, ${report.payloads} payloads, ${report.sensors} sensors, ${report.calibrations} calibrations, ${report.layouts} layouts`);
+  for (const k of report.kept) console.log(`  kept ${k.kind} ${k.name}: ${k.reason}`);
+  return 0;
 }
 
 async function runIngest(args: string[]): Promise<number> {

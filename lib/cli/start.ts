@@ -3,11 +3,12 @@ import fs from "node:fs";
 import { getDbHandle } from "../db/index.ts";
 import { applyMigrations, redactUrl } from "../db/migrate.ts";
 import { getEnv } from "../env.ts";
-import { loadDemoProgram } from "../../seed/load.ts";
+import { autoloadDemo } from "../../seed/load.ts";
 
 /**
- * `npm start`: apply migrations, load the demo archive when the database is empty, build the
- * app when there is no production build yet, then serve it on PORT (default 3000).
+ * `npm start`: apply migrations, load the demo archive when an embedded SQLite database is empty
+ * (never on PostgreSQL, never beside other data), build the app when there is no production build
+ * yet, then serve it on PORT (default 3000).
  */
 async function start(): Promise<void> {
   // Nothing leaves a school's server: the build and the app processes inherit this.
@@ -15,14 +16,20 @@ async function start(): Promise<void> {
   const env = getEnv();
   console.log(`Database: ${redactUrl(env.DATABASE_URL)}`);
   applyMigrations(env.DATABASE_URL);
-  const { db } = getDbHandle();
-  if ((await db.school.count()) === 0 && process.env.LAPSEBANK_SKIP_DEMO !== "1") {
-    console.log("The database is empty: loading the demo archive (invented schools and flights)…");
-    const report = await loadDemoProgram(db, {
-      onProgress: (done, total) => process.stdout.write(`\r  ${done}/${total} flights`),
-    });
+  const handle = getDbHandle();
+  const { db } = handle;
+  const demo = await autoloadDemo(handle, {
+    skip: process.env.LAPSEBANK_SKIP_DEMO === "1",
+    onProgress: (done, total) => {
+      if (done === 1) console.log("The SQLite database is empty: loading the demo archive (invented schools and flights, labelled as such)…");
+      process.stdout.write(`\r  ${done}/${total} flights`);
+    },
+  });
+  if (demo.loaded) {
     process.stdout.write("\n");
-    console.log(`  ${report.flights} demo flights loaded${report.failures.length ? `, ${report.failures.length} failed` : ""}`);
+    console.log(`  ${demo.report.flights} demo flights loaded${demo.report.failures.length ? `, ${demo.report.failures.length} failed` : ""}; \`npm run lapsebank -- demo remove\` takes them out again`);
+  } else if (demo.reason === "not-sqlite" && (await db.flight.count()) === 0) {
+    console.log("PostgreSQL database: no demo loaded (run `npm run lapsebank -- demo` to load the invented demo archive)");
   }
   await db.$disconnect();
 

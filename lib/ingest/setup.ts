@@ -4,8 +4,24 @@ import { Prisma } from "../db/index.ts";
 import { isValidTimeZone } from "../analysis/launch-time.ts";
 import { loggerLayoutSpecSchema } from "./layout.ts";
 import { temperatureCalibrationSchema } from "./schemas.ts";
+import type { Actor } from "./store.ts";
 
 type DbLike = Db | DbTransaction;
+
+const SETUP_ACTOR: Actor = { userId: null, label: "setup" };
+
+/**
+ * Runs `work` in a transaction: the caller's, when `db` already is one, otherwise a new one. A
+ * create and its audit row are written together or not at all.
+ */
+async function inTransaction<T>(db: DbLike, work: (tx: DbTransaction) => Promise<T>): Promise<T> {
+  const client = db as Partial<Pick<Db, "$transaction">>;
+  return typeof client.$transaction === "function" ? (db as Db).$transaction(work) : work(db as DbTransaction);
+}
+
+async function auditCreate(tx: DbTransaction, actor: Actor, schoolId: string | null, entityType: string, entityId: string, details: Prisma.InputJsonValue) {
+  await tx.auditEvent.create({ data: { actorUserId: actor.userId, actorLabel: actor.label, schoolId, action: `${entityType}.create`, entityType, entityId, details } });
+}
 
 export const schoolInputSchema = z.object({
   name: z.string().trim().min(2).max(120),
@@ -52,30 +68,52 @@ export function slugify(name: string): string {
   return name.toLowerCase().normalize("NFKD").replace(/[^a-z0-9]+/g, "-").replace(/^-+|-+$/g, "").slice(0, 60) || "school";
 }
 
-export async function createSchool(db: DbLike, input: z.input<typeof schoolInputSchema>) {
+/** Creates a school (audited as school.create). */
+export async function createSchool(db: DbLike, input: z.input<typeof schoolInputSchema>, actor: Actor = SETUP_ACTOR) {
   const data = schoolInputSchema.parse(input);
-  return db.school.create({ data: { name: data.name, slug: data.slug ?? slugify(data.name) } });
+  return inTransaction(db, async (tx) => {
+    const school = await tx.school.create({ data: { name: data.name, slug: data.slug ?? slugify(data.name) } });
+    await auditCreate(tx, actor, school.id, "school", school.id, { name: school.name, slug: school.slug });
+    return school;
+  });
 }
 
-export async function createSite(db: DbLike, input: z.input<typeof siteInputSchema>) {
-  return db.site.create({ data: siteInputSchema.parse(input) });
+/** Creates a launch site (audited as site.create, in the same transaction). */
+export async function createSite(db: DbLike, input: z.input<typeof siteInputSchema>, actor: Actor = SETUP_ACTOR) {
+  const data = siteInputSchema.parse(input);
+  return inTransaction(db, async (tx) => {
+    const site = await tx.site.create({ data });
+    await auditCreate(tx, actor, site.schoolId, "site", site.id, { name: site.name, latitudeDeg: site.latitudeDeg, longitudeDeg: site.longitudeDeg, elevationM: site.elevationM, timeZone: site.timeZone });
+    return site;
+  });
 }
 
-export async function createPayload(db: DbLike, input: z.input<typeof payloadInputSchema>) {
-  return db.payload.create({ data: payloadInputSchema.parse(input) });
+/** Creates a payload (audited as payload.create, in the same transaction). */
+export async function createPayload(db: DbLike, input: z.input<typeof payloadInputSchema>, actor: Actor = SETUP_ACTOR) {
+  const data = payloadInputSchema.parse(input);
+  return inTransaction(db, async (tx) => {
+    const payload = await tx.payload.create({ data });
+    await auditCreate(tx, actor, payload.schoolId, "payload", payload.id, { name: payload.name });
+    return payload;
+  });
 }
 
-export async function createSensor(db: DbLike, input: z.input<typeof sensorInputSchema>) {
+/** Creates a sensor and, with a payload, its first mount (audited as sensor.create, in the same transaction). */
+export async function createSensor(db: DbLike, input: z.input<typeof sensorInputSchema>, actor: Actor = SETUP_ACTOR) {
   const { payloadId, mountedFromUtc, mountedToUtc, ...data } = sensorInputSchema.parse(input);
-  if (payloadId) {
-    const payload = await db.payload.findUnique({ where: { id: payloadId }, select: { schoolId: true } });
-    if (payload?.schoolId !== data.schoolId) throw new z.ZodError([{ code: "custom", path: ["payloadId"], message: "That payload does not belong to this school", input: payloadId }]);
-  }
-  const sensor = await db.sensor.create({ data });
-  if (payloadId) {
-    await db.sensorMount.create({ data: { sensorId: sensor.id, payloadId, fromUtc: mountedFromUtc ?? new Date(0), toUtc: mountedToUtc ?? null } });
-  }
-  return sensor;
+  return inTransaction(db, async (tx) => {
+    if (payloadId) {
+      const payload = await tx.payload.findUnique({ where: { id: payloadId }, select: { schoolId: true } });
+      if (payload?.schoolId !== data.schoolId) throw new z.ZodError([{ code: "custom", path: ["payloadId"], message: "That payload does not belong to this school", input: payloadId }]);
+    }
+    const sensor = await tx.sensor.create({ data });
+    let mountId: string | null = null;
+    if (payloadId) {
+      mountId = (await tx.sensorMount.create({ data: { sensorId: sensor.id, payloadId, fromUtc: mountedFromUtc ?? new Date(0), toUtc: mountedToUtc ?? null } })).id;
+    }
+    await auditCreate(tx, actor, sensor.schoolId, "sensor", sensor.id, { serial: sensor.serial, kind: sensor.kind, timeConstantS: sensor.timeConstantS, payloadId: payloadId ?? null, mountId });
+    return sensor;
+  });
 }
 
 export class OverlappingCalibrationError extends Error {
@@ -94,26 +132,43 @@ async function refuseOverlap(db: DbLike, data: { sensorId: string; validFromUtc:
   }
 }
 
-/** Creates a calibration; refuses a validity period that overlaps another of the same sensor. */
-export async function createCalibration(db: DbLike, input: z.input<typeof calibrationInputSchema>) {
+/**
+ * Creates a calibration; refuses a validity period that overlaps another of the same sensor.
+ * Audited as calibration.create in the same transaction.
+ */
+export async function createCalibration(db: DbLike, input: z.input<typeof calibrationInputSchema>, actor: Actor = SETUP_ACTOR) {
   const data = calibrationInputSchema.parse(input);
-  await refuseOverlap(db, data);
-  return db.calibration.create({
-    data: {
-      sensorId: data.sensorId,
-      spec: data.spec as unknown as Prisma.InputJsonValue,
-      validFromUtc: data.validFromUtc,
-      validToUtc: data.validToUtc,
-      method: data.method,
-      referenceReadings: (data.referenceReadings ?? undefined) as Prisma.InputJsonValue | undefined,
-      notes: data.notes,
-    },
+  return inTransaction(db, async (tx) => {
+    await refuseOverlap(tx, data);
+    const calibration = await tx.calibration.create({
+      data: {
+        sensorId: data.sensorId,
+        spec: data.spec as unknown as Prisma.InputJsonValue,
+        validFromUtc: data.validFromUtc,
+        validToUtc: data.validToUtc,
+        method: data.method,
+        referenceReadings: (data.referenceReadings ?? undefined) as Prisma.InputJsonValue | undefined,
+        notes: data.notes,
+      },
+      include: { sensor: { select: { schoolId: true } } },
+    });
+    await auditCreate(tx, actor, calibration.sensor.schoolId, "calibration", calibration.id, {
+      sensorId: calibration.sensorId, method: calibration.method,
+      validFromUtc: calibration.validFromUtc.toISOString(), validToUtc: calibration.validToUtc?.toISOString() ?? null,
+    });
+    const { sensor: _sensor, ...row } = calibration;
+    return row;
   });
 }
 
-export async function createLayout(db: DbLike, input: z.input<typeof layoutInputSchema>) {
+/** Creates a logger layout (audited as layout.create, in the same transaction). */
+export async function createLayout(db: DbLike, input: z.input<typeof layoutInputSchema>, actor: Actor = SETUP_ACTOR) {
   const data = layoutInputSchema.parse(input);
-  return db.loggerLayout.create({ data: { schoolId: data.schoolId, name: data.spec.name, spec: data.spec as unknown as Prisma.InputJsonValue } });
+  return inTransaction(db, async (tx) => {
+    const layout = await tx.loggerLayout.create({ data: { schoolId: data.schoolId, name: data.spec.name, spec: data.spec as unknown as Prisma.InputJsonValue } });
+    await auditCreate(tx, actor, layout.schoolId, "layout", layout.id, { name: layout.name });
+    return layout;
+  });
 }
 
 /**

@@ -1,4 +1,5 @@
 import { calibrationInputSchema, createCalibration, selectFlights } from "@/lib/ingest";
+import { currentActor } from "@/app/_lib/viewer";
 import { getDb } from "@/lib/db";
 import { getSetupSensor } from "@/lib/query/setup-pages";
 import { jsonError, jsonOk, withErrors } from "../../_lib/respond";
@@ -30,7 +31,7 @@ export const POST = withErrors(async (request: Request) => {
   const refused = await refuseUnlessAllowed(sensor.schoolId);
   if (refused) return refused;
   try {
-    const calibration = await createCalibration(db, body.data);
+    const calibration = await createCalibration(db, body.data, await currentActor("api"));
     const affectedFlightIds = await selectFlights(db, { calibrationId: calibration.id });
     return jsonOk({ calibration, affectedFlightIds, reprocess: { calibrationId: calibration.id } }, 201);
   } catch (error) {

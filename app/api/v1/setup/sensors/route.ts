@@ -1,4 +1,5 @@
 import { createSensor, sensorInputSchema } from "@/lib/ingest";
+import { currentActor } from "@/app/_lib/viewer";
 import { getDb } from "@/lib/db";
 import { listSetupSensors } from "@/lib/query/setup-pages";
 import { jsonOk, withErrors } from "../../_lib/respond";
@@ -22,7 +23,7 @@ export const POST = withErrors(async (request: Request) => {
   const refused = await refuseUnlessAllowed(body.data.schoolId);
   if (refused) return refused;
   try {
-    return jsonOk({ sensor: await createSensor(getDb(), body.data) }, 201);
+    return jsonOk({ sensor: await createSensor(getDb(), body.data, await currentActor("api")) }, 201);
   } catch (error) {
     return setupFailure(error);
   }
