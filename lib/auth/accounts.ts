@@ -2,7 +2,7 @@ import { createHash, randomBytes, timingSafeEqual } from "node:crypto";
 import { hash as argon2Hash, verify as argon2Verify } from "@node-rs/argon2";
 import { z } from "zod";
 import { Prisma, type Db } from "../db/index.ts";
-import { ACCOUNT_RULE, ADDRESS_RULE, clearFailures, refundCheck, reserveCheck } from "./login-throttle.ts";
+import { ACCOUNT_RULE, ADDRESS_RULE, clearFailures, pruneThrottles, refundCheck, reserveCheck } from "./login-throttle.ts";
 import type { Role, TokenScope, Viewer } from "./visibility.ts";
 
 export const SESSION_COOKIE = "lapsebank_session";
@@ -114,6 +114,7 @@ export async function signIn(db: Db, input: z.input<typeof signInSchema>, addres
   await clearFailures(db, accountKey);
   if (addressThrottled) await refundCheck(db, addressKey);
   await rememberAddress(db, user.id, address);
+  await pruneThrottles(db);
   const sessionSecret = secret();
   const expiresAt = new Date(Date.now() + SESSION_DAYS * 86_400_000);
   await db.session.create({ data: { id: sha256(sessionSecret), userId: user.id, expiresAt } });

@@ -73,3 +73,9 @@ export async function clearFailures(db: Db, key: string): Promise<void> {
 export async function refundCheck(db: Db, key: string): Promise<void> {
   await db.loginThrottle.updateMany({ where: { key, failures: { gt: 0 } }, data: { failures: { decrement: 1 } } });
 }
+
+/** Rows untouched for a day hold nothing a rule still uses (every wait and window is shorter): delete them. */
+export async function pruneThrottles(db: Db, now = new Date()): Promise<number> {
+  const { count } = await db.loginThrottle.deleteMany({ where: { updatedAt: { lt: new Date(now.getTime() - 86_400_000) }, nextCheckAt: { lt: now } } });
+  return count;
+}

@@ -145,6 +145,10 @@ describe.each(testEngines())("accounts, tokens and visibility on %s", (engine) =
     await endWait("account:mallory-target@example.org");
     const session = await signIn(database.db, { email: "mallory-target@example.org", password }, "10.0.0.99");
     expect((await viewerFromSession(database.db, session.sessionSecret))?.kind).toBe("member");
+    // Rows nobody touched for a day are pruned by the next successful sign-in.
+    await database.db.loginThrottle.create({ data: { key: "account:long-ago@example.org", failures: 3, updatedAt: new Date(Date.now() - 2 * 86_400_000), nextCheckAt: new Date(Date.now() - 2 * 86_400_000) } });
+    await signIn(database.db, { email: "mallory-target@example.org", password }, "10.0.0.99");
+    expect(await database.db.loginThrottle.count({ where: { key: "account:long-ago@example.org" } })).toBe(0);
     // Signing in clears the count: the next mistake is checked at once.
     await expect(signIn(database.db, { email: "mallory-target@example.org", password: "wrong wrong" }, "10.0.0.99")).rejects.toMatchObject({ code: "bad-credentials" });
   });

@@ -9,6 +9,9 @@ CREATE TABLE "LoginThrottle" (
     "updatedAt" DATETIME NOT NULL DEFAULT CURRENT_TIMESTAMP
 );
 
+-- CreateIndex
+CREATE INDEX "LoginThrottle_updatedAt_idx" ON "LoginThrottle"("updatedAt");
+
 -- CreateTable
 CREATE TABLE "SignInAddress" (
     "userId" TEXT NOT NULL,

@@ -11,6 +11,9 @@ CREATE TABLE "LoginThrottle" (
     CONSTRAINT "LoginThrottle_pkey" PRIMARY KEY ("key")
 );
 
+-- CreateIndex
+CREATE INDEX "LoginThrottle_updatedAt_idx" ON "LoginThrottle"("updatedAt");
+
 -- CreateTable
 CREATE TABLE "SignInAddress" (
     "userId" TEXT NOT NULL,
