@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { parseTrustedProxy } from "./auth/trusted-proxy.ts";
 
 /** Environment, validated once. Pure modules (lib/analysis, lib/stats) never import this. */
 const envSchema = z.object({
@@ -8,6 +9,23 @@ const envSchema = z.object({
     .default("file:./data/lapsebank.db"),
   LAPSEBANK_MAX_UPLOAD_MB: z.coerce.number().positive().max(2048).default(50),
   LAPSEBANK_SESSION_DAYS: z.coerce.number().positive().default(14),
+  /** Origin the app is reached at (`https://archive.example.org`): absolute links and `Location` headers use it. */
+  LAPSEBANK_PUBLIC_URL: z
+    .url({ protocol: /^https?$/, error: "LAPSEBANK_PUBLIC_URL must be an http:// or https:// URL" })
+    .refine((value) => new URL(value).pathname === "/" && !new URL(value).search, "LAPSEBANK_PUBLIC_URL is an origin only (scheme, host, port), without a path")
+    .optional(),
+  /** Proxies believed about the client address and host: unset (socket address), a hop count, or addresses/CIDRs. */
+  LAPSEBANK_TRUSTED_PROXY: z
+    .string()
+    .optional()
+    .transform((value, ctx) => {
+      try {
+        return parseTrustedProxy(value);
+      } catch (error) {
+        ctx.addIssue({ code: "custom", message: error instanceof Error ? error.message : String(error) });
+        return z.NEVER;
+      }
+    }),
   NODE_ENV: z.enum(["development", "production", "test"]).default("development"),
   PORT: z.coerce.number().int().positive().default(3000),
 });

@@ -6,6 +6,8 @@ import { PermissionError } from "@/lib/auth/permissions";
 import { resolveViewer } from "@/lib/auth/resolve-viewer";
 import type { Viewer } from "@/lib/auth/visibility";
 import { getDb } from "@/lib/db";
+import { getEnv } from "@/lib/env";
+import { clientAddress, forwardingHeaders } from "@/lib/auth/trusted-proxy";
 
 /**
  * Who is looking at the page or calling the API: the session cookie, an `Authorization: Bearer`
@@ -25,10 +27,12 @@ export const getViewer = cache(async (): Promise<Viewer> => {
   return resolution.viewer;
 });
 
-/** The client's address for rate limiting: the first X-Forwarded-For hop behind a proxy, else a fixed label. */
+/**
+ * The client's address for sign-in limits: the socket peer, or what a configured trusted proxy
+ * (LAPSEBANK_TRUSTED_PROXY) forwarded; never an X-Forwarded-For the client wrote itself.
+ */
 export async function getClientAddress(): Promise<string> {
-  const headerStore = await headers();
-  return headerStore.get("x-forwarded-for")?.split(",")[0]?.trim() || headerStore.get("x-real-ip") || "direct";
+  return clientAddress(forwardingHeaders(await headers()), getEnv().LAPSEBANK_TRUSTED_PROXY);
 }
 
 /** Who to credit in the audit log for what this request changes. */

@@ -69,8 +69,9 @@ export async function changePasswordAction(_: FormState, formData: FormData): Pr
   const viewer = await getViewer();
   if (viewer.kind !== "member") return { ok: false, message: "Sign in first." };
   try {
-    await changePassword(getDb(), viewer.userId, String(formData.get("currentPassword") ?? ""), String(formData.get("newPassword") ?? ""));
-    return { ok: true, message: "Password changed." };
+    const keepSessionSecret = (await cookies()).get(SESSION_COOKIE)?.value;
+    const { sessionsEnded } = await changePassword(getDb(), viewer.userId, String(formData.get("currentPassword") ?? ""), String(formData.get("newPassword") ?? ""), keepSessionSecret ? { keepSessionSecret } : {});
+    return { ok: true, message: sessionsEnded > 0 ? `Password changed. You were signed out everywhere else (${sessionsEnded} other ${sessionsEnded === 1 ? "session" : "sessions"}).` : "Password changed." };
   } catch (error) {
     if (error instanceof AccountError) return { ok: false, message: error.message };
     throw error;
@@ -97,7 +98,13 @@ export async function createTokenAction(_: FormState, formData: FormData): Promi
 export async function revokeTokenAction(formData: FormData): Promise<void> {
   const viewer = await getViewer();
   if (viewer.kind !== "member") redirect("/account");
-  await revokeApiToken(getDb(), String(formData.get("tokenId") ?? ""), viewer.userId);
+  try {
+    await revokeApiToken(getDb(), String(formData.get("tokenId") ?? ""), viewer.userId);
+  } catch (error) {
+    // Someone else's token, or none: the same answer, so token ids reveal nothing.
+    if (error instanceof AccountError) redirect("/account?error=token-not-found");
+    throw error;
+  }
   revalidatePath("/account");
 }
 
@@ -130,8 +137,15 @@ export async function setRoleAction(formData: FormData): Promise<void> {
   const schoolId = String(formData.get("schoolId") ?? "");
   const userId = String(formData.get("userId") ?? "");
   const roleValue = String(formData.get("role") ?? "");
-  if (!can(viewer, "members.manage", { schoolId })) redirect(`/schools/${schoolId}/members?error=forbidden`);
-  const role = roleValue === "remove" ? null : roleSchema.parse(roleValue);
-  await setMembershipRole(getDb(), { userId, schoolId, role, byUserId: viewer.kind === "member" ? viewer.userId : null });
-  revalidatePath(`/schools/${schoolId}/members`);
+  const page = `/schools/${encodeURIComponent(schoolId)}/members`;
+  if (!can(viewer, "members.manage", { schoolId })) redirect(`${page}?error=forbidden`);
+  const role = roleValue === "remove" ? ({ success: true, data: null } as const) : roleSchema.safeParse(roleValue);
+  if (!role.success) redirect(`${page}?error=unknown-role`);
+  try {
+    await setMembershipRole(getDb(), { userId, schoolId, role: role.data, byUserId: viewer.kind === "member" ? viewer.userId : null });
+  } catch (error) {
+    if (error instanceof AccountError) redirect(`${page}?error=not-a-member`);
+    throw error;
+  }
+  revalidatePath(page);
 }

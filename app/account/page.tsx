@@ -2,6 +2,7 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { getAccount, hasAnyAccount, listSchools } from "@/lib/query/accounts";
 import { getViewer } from "@/app/_lib/viewer";
+import { can } from "@/lib/auth/permissions";
 import { signOutAction, revokeTokenAction } from "./actions";
 import { ChangePasswordForm, CreateTokenForm, SignInForm, SignUpForm } from "./_components/account-forms";
 
@@ -11,6 +12,15 @@ export default async function AccountPage({ searchParams }: { searchParams: Prom
   const params = await searchParams;
   const next = typeof params.next === "string" ? params.next : "";
   const viewer = await getViewer();
+  const error = params.error === "token-not-found" ? "No such token among yours: nothing was revoked." : "";
+  if (viewer.kind === "member" && !can(viewer, "account.manage", { schoolId: null })) {
+    return (
+      <>
+        <h1>Account</h1>
+        <p className="notice notice-error" role="alert">API tokens cannot open the account page; sign in instead.</p>
+      </>
+    );
+  }
   if (viewer.kind !== "member") {
     const anyAccount = await hasAnyAccount();
     return (
@@ -35,6 +45,7 @@ export default async function AccountPage({ searchParams }: { searchParams: Prom
         {account.isProgramAdmin ? " · program admin" : ""}
       </p>
       {params.joined ? <p className="notice notice-ok" role="status">You joined the school.</p> : null}
+      {error ? <p className="notice notice-error" role="alert">{error}</p> : null}
       <form action={signOutAction}>
         <button className="button button-secondary" type="submit">Sign out</button>
       </form>

@@ -2,6 +2,7 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { restoreFlightAction } from "@/app/flights/[id]/actions";
 import { getViewer } from "@/app/_lib/viewer";
+import { auditSchoolIds } from "@/lib/auth/permissions";
 import { listAuditEvents, listDeletedFlights } from "@/lib/query/accounts";
 
 export const metadata: Metadata = { title: "Audit log" };
@@ -10,13 +11,14 @@ const PAGE_SIZE = 50;
 
 export default async function AuditPage({ searchParams }: { searchParams: Promise<{ page?: string }> }) {
   const viewer = await getViewer();
-  const adminSchools = viewer.kind === "member" ? viewer.memberships.filter((m) => m.role === "school-admin").map((m) => m.schoolId) : [];
-  const scope: string[] | null = viewer.kind === "local" || (viewer.kind === "member" && viewer.isProgramAdmin) ? null : adminSchools;
+  const scope = auditSchoolIds(viewer);
   if (scope !== null && scope.length === 0) {
     return (
       <>
         <h1>Audit log</h1>
-        <p className="notice notice-error" role="alert">The audit log is for program and school admins.</p>
+        <p className="notice notice-error" role="alert">
+          {viewer.kind === "member" && viewer.tokenScopes ? "API tokens cannot open the audit log; sign in instead." : "The audit log is for program and school admins."}
+        </p>
       </>
     );
   }

@@ -1,14 +1,12 @@
 import { createHash, randomBytes, timingSafeEqual } from "node:crypto";
 import { hash as argon2Hash, verify as argon2Verify } from "@node-rs/argon2";
 import { z } from "zod";
-import type { Db } from "../db/index.ts";
+import { Prisma, type Db } from "../db/index.ts";
+import { ACCOUNT_RULE, ADDRESS_RULE, clearFailures, pruneThrottles, refundCheck, reserveCheck } from "./login-throttle.ts";
 import type { Role, TokenScope, Viewer } from "./visibility.ts";
 
 export const SESSION_COOKIE = "lapsebank_session";
 const SESSION_DAYS = 14;
-const LOGIN_WINDOW_MS = 15 * 60 * 1000;
-const MAX_FAILURES_PER_ACCOUNT = 5;
-const MAX_FAILURES_PER_ADDRESS = 20;
 const INVITATION_DAYS = 7;
 
 export const emailSchema = z.string().trim().toLowerCase().email("Enter a valid email address").max(200);
@@ -36,7 +34,7 @@ export async function countUsers(db: Db): Promise<number> {
 }
 
 export class AccountError extends Error {
-  constructor(readonly code: "email-taken" | "bad-credentials" | "rate-limited" | "invalid-invitation" | "not-found" | "weak-password", message: string, readonly retryAfterS?: number) {
+  constructor(readonly code: "email-taken" | "bad-credentials" | "rate-limited" | "invalid-invitation" | "not-found" | "already-member" | "weak-password", message: string, readonly retryAfterS?: number) {
     super(message);
     this.name = "AccountError";
   }
@@ -56,30 +54,67 @@ export async function createUser(db: Db, input: z.input<typeof signUpSchema>, op
   });
 }
 
-async function recentFailures(db: Db, key: string): Promise<number> {
-  return db.loginAttempt.count({ where: { key, at: { gt: new Date(Date.now() - LOGIN_WINDOW_MS) } } });
+/** A sign-in from an address this person has signed in from before (within this many days) skips the address's throttle. */
+const KNOWN_ADDRESS_DAYS = 90;
+
+function rateLimited(retryAfterMs: number, whose: "account" | "address"): AccountError {
+  const seconds = Math.max(1, Math.ceil(retryAfterMs / 1000));
+  const wait = seconds < 120 ? `${seconds} seconds` : `${Math.ceil(seconds / 60)} minutes`;
+  const message = whose === "account"
+    ? `Too many failed sign-in attempts for this account. Wait ${wait}, then try again.`
+    : `Too many failed sign-in attempts from your network. Wait ${wait}, then try again.`;
+  return new AccountError("rate-limited", message, seconds);
+}
+
+async function isKnownAddress(db: Db, email: string, address: string): Promise<boolean> {
+  const user = await db.user.findUnique({ where: { email }, select: { id: true } });
+  if (!user) return false;
+  const known = await db.signInAddress.findUnique({ where: { userId_address: { userId: user.id, address } } });
+  return known !== null && Date.now() - known.lastSignInAt.getTime() < KNOWN_ADDRESS_DAYS * 86_400_000;
+}
+
+async function rememberAddress(db: Db, userId: string, address: string): Promise<void> {
+  try {
+    await db.signInAddress.upsert({ where: { userId_address: { userId, address } }, create: { userId, address }, update: { lastSignInAt: new Date() } });
+  } catch (error) {
+    // Two sign-ins of one person from one address at once: the other one wrote the row.
+    if (!(error instanceof Prisma.PrismaClientKnownRequestError && error.code === "P2002")) throw error;
+  }
 }
 
 /**
- * Checks email and password, rate-limited per account and per address through the database
- * (so every app process sees the same counts). Returns a new session secret for the cookie.
+ * Checks email and password. Limits live in the database (every app process shares them) and are
+ * claimed before the password is checked, so concurrent tries cannot exceed them:
+ * - per account: 5 free tries, then a doubling wait (15 s … 5 min) before each further check; a
+ *   correct password after the wait signs in and clears the count (the owner is slowed, never locked out);
+ * - per client address: 20 free tries across all accounts, then the same doubling wait; a person
+ *   signing in from an address they signed in from successfully before is exempt from it (their
+ *   account's own limit still applies), so a guesser sharing a school's address cannot stop them.
+ * `address` comes from the trusted-proxy rule (app/_lib/viewer.ts getClientAddress).
+ * Returns a new session secret for the cookie.
  */
 export async function signIn(db: Db, input: z.input<typeof signInSchema>, address: string): Promise<{ sessionSecret: string; userId: string; expiresAt: Date }> {
   const data = signInSchema.parse(input);
   const accountKey = `account:${data.email}`;
   const addressKey = `address:${address}`;
-  const [accountFailures, addressFailures] = await Promise.all([recentFailures(db, accountKey), recentFailures(db, addressKey)]);
-  if (accountFailures >= MAX_FAILURES_PER_ACCOUNT || addressFailures >= MAX_FAILURES_PER_ADDRESS) {
-    throw new AccountError("rate-limited", "Too many failed sign-in attempts. Wait 15 minutes and try again.", LOGIN_WINDOW_MS / 1000);
+  const addressThrottled = !(await isKnownAddress(db, data.email, address));
+  if (addressThrottled) {
+    const byAddress = await reserveCheck(db, addressKey, ADDRESS_RULE);
+    if (!byAddress.ok) throw rateLimited(byAddress.retryAfterMs, "address");
+  }
+  const byAccount = await reserveCheck(db, accountKey, ACCOUNT_RULE);
+  if (!byAccount.ok) {
+    if (addressThrottled) await refundCheck(db, addressKey);
+    throw rateLimited(byAccount.retryAfterMs, "account");
   }
   const user = await db.user.findUnique({ where: { email: data.email } });
   // Verify against a dummy hash when the account does not exist, so timing does not reveal it.
   const ok = user ? await argon2Verify(user.passwordHash, data.password) : (await argon2Verify(await dummyHash(), data.password), false);
-  if (!user || !ok) {
-    await db.loginAttempt.createMany({ data: [{ key: accountKey }, { key: addressKey }] });
-    throw new AccountError("bad-credentials", "Email or password is wrong.");
-  }
-  await db.loginAttempt.deleteMany({ where: { key: accountKey } });
+  if (!user || !ok) throw new AccountError("bad-credentials", "Email or password is wrong.");
+  await clearFailures(db, accountKey);
+  if (addressThrottled) await refundCheck(db, addressKey);
+  await rememberAddress(db, user.id, address);
+  await pruneThrottles(db);
   const sessionSecret = secret();
   const expiresAt = new Date(Date.now() + SESSION_DAYS * 86_400_000);
   await db.session.create({ data: { id: sha256(sessionSecret), userId: user.id, expiresAt } });
@@ -96,13 +131,23 @@ export async function signOut(db: Db, sessionSecret: string): Promise<void> {
   await db.session.deleteMany({ where: { id: sha256(sessionSecret) } });
 }
 
-export async function changePassword(db: Db, userId: string, currentPassword: string, newPassword: string): Promise<void> {
+/**
+ * Changes a password after checking the current one, and signs out every other session of the
+ * person (a thief's cookie stops working); the session making the change, if given, stays.
+ */
+export async function changePassword(db: Db, userId: string, currentPassword: string, newPassword: string, options: { keepSessionSecret?: string } = {}): Promise<{ sessionsEnded: number }> {
   const user = await db.user.findUnique({ where: { id: userId } });
   if (!user || !(await argon2Verify(user.passwordHash, currentPassword))) throw new AccountError("bad-credentials", "The current password is wrong.");
   const parsed = passwordSchema.safeParse(newPassword);
   if (!parsed.success) throw new AccountError("weak-password", parsed.error.issues[0]?.message ?? "Choose a longer password");
-  await db.user.update({ where: { id: userId }, data: { passwordHash: await hashPassword(parsed.data) } });
-  await db.auditEvent.create({ data: { actorUserId: userId, actorLabel: user.email, action: "user.password-change", entityType: "user", entityId: userId } });
+  const passwordHash = await hashPassword(parsed.data);
+  const keep = options.keepSessionSecret ? sha256(options.keepSessionSecret) : null;
+  return db.$transaction(async (tx) => {
+    await tx.user.update({ where: { id: userId }, data: { passwordHash } });
+    const ended = await tx.session.deleteMany({ where: { userId, ...(keep ? { id: { not: keep } } : {}) } });
+    await tx.auditEvent.create({ data: { actorUserId: userId, actorLabel: user.email, action: "user.password-change", entityType: "user", entityId: userId, details: { otherSessionsEnded: ended.count } } });
+    return { sessionsEnded: ended.count };
+  });
 }
 
 async function memberViewer(db: Db, userId: string, extra: { schoolId?: string; scopes?: TokenScope[] } = {}): Promise<Viewer | null> {
@@ -179,32 +224,60 @@ export async function createInvitation(db: Db, input: { schoolId: string; role: 
   return { id: row.id, secret: invitationSecret, expiresAt };
 }
 
-/** Accepts an invitation for a signed-in user: adds (or upgrades) their membership; the link then stops working. */
+const ROLE_RANK: Record<Role, number> = { reader: 1, contributor: 2, "school-admin": 3 };
+
+/**
+ * Accepts an invitation for a signed-in user: adds their membership, or raises their role to the
+ * invitation's; an invitation never lowers a role (a school admin opening a reader link stays admin).
+ * The link then stops working. Returns the role the person has afterwards.
+ */
 export async function acceptInvitation(db: Db, invitationSecret: string, userId: string): Promise<{ schoolId: string; role: Role }> {
   return db.$transaction(async (tx) => {
     const invitation = await tx.invitation.findUnique({ where: { tokenHash: sha256(invitationSecret) } });
     if (!invitation || invitation.usedAt || invitation.expiresAt < new Date()) throw new AccountError("invalid-invitation", "This invitation link has expired or was already used. Ask for a new one.");
+    const invited = roleSchema.parse(invitation.role);
     const used = await tx.invitation.updateMany({ where: { id: invitation.id, usedAt: null }, data: { usedAt: new Date() } });
     if (used.count !== 1) throw new AccountError("invalid-invitation", "This invitation link was already used.");
-    await tx.membership.upsert({
-      where: { userId_schoolId: { userId, schoolId: invitation.schoolId } },
-      update: { role: invitation.role },
-      create: { userId, schoolId: invitation.schoolId, role: invitation.role },
-    });
-    await tx.auditEvent.create({ data: { actorUserId: userId, schoolId: invitation.schoolId, action: "membership.join", entityType: "membership", entityId: `${userId}:${invitation.schoolId}`, details: { role: invitation.role } } });
-    return { schoolId: invitation.schoolId, role: invitation.role as Role };
+    const existing = await tx.membership.findUnique({ where: { userId_schoolId: { userId, schoolId: invitation.schoolId } } });
+    const current = existing ? roleSchema.safeParse(existing.role) : null;
+    let role: Role = invited;
+    if (!existing) {
+      await tx.membership.create({ data: { userId, schoolId: invitation.schoolId, role: invited } });
+    } else if (current?.success && ROLE_RANK[current.data] >= ROLE_RANK[invited]) {
+      role = current.data;
+    } else {
+      await tx.membership.update({ where: { id: existing.id }, data: { role: invited } });
+    }
+    await tx.auditEvent.create({ data: { actorUserId: userId, schoolId: invitation.schoolId, action: "membership.join", entityType: "membership", entityId: `${userId}:${invitation.schoolId}`, details: { invitedRole: invited, role, previousRole: existing?.role ?? null } } });
+    return { schoolId: invitation.schoolId, role };
   });
 }
 
+/**
+ * Changes the role of an existing member, or removes them (`role: null`). People join only by
+ * invitation (or `addMembership` from trusted set-up code), so an unknown user or a user who is
+ * not a member of the school is refused with AccountError("not-found").
+ */
 export async function setMembershipRole(db: Db, input: { userId: string; schoolId: string; role: Role | null; byUserId: string | null }): Promise<void> {
-  if (input.role === null) {
-    await db.membership.deleteMany({ where: { userId: input.userId, schoolId: input.schoolId } });
-  } else {
-    await db.membership.upsert({
-      where: { userId_schoolId: { userId: input.userId, schoolId: input.schoolId } },
-      update: { role: input.role },
-      create: { userId: input.userId, schoolId: input.schoolId, role: input.role },
-    });
-  }
+  const changed = input.role === null
+    ? await db.membership.deleteMany({ where: { userId: input.userId, schoolId: input.schoolId } })
+    : await db.membership.updateMany({ where: { userId: input.userId, schoolId: input.schoolId }, data: { role: input.role } });
+  if (changed.count === 0) throw new AccountError("not-found", "That person is not a member of this school; invite them with a link instead.");
   await db.auditEvent.create({ data: { actorUserId: input.byUserId, schoolId: input.schoolId, action: "membership.role", entityType: "membership", entityId: `${input.userId}:${input.schoolId}`, details: { role: input.role } } });
+}
+
+/**
+ * Adds a member directly, without an invitation: for trusted set-up code (the CLI, tests), never a
+ * web form. Refuses an unknown user or school, and an existing membership (change it with setMembershipRole).
+ */
+export async function addMembership(db: Db, input: { userId: string; schoolId: string; role: Role; byUserId: string | null }): Promise<void> {
+  const [user, school] = await Promise.all([db.user.findUnique({ where: { id: input.userId } }), db.school.findUnique({ where: { id: input.schoolId } })]);
+  if (!user || !school) throw new AccountError("not-found", "No such user or school.");
+  try {
+    await db.membership.create({ data: { userId: input.userId, schoolId: input.schoolId, role: input.role } });
+  } catch (error) {
+    if (error instanceof Prisma.PrismaClientKnownRequestError && error.code === "P2002") throw new AccountError("already-member", "That person is already a member of this school.");
+    throw error;
+  }
+  await db.auditEvent.create({ data: { actorUserId: input.byUserId, schoolId: input.schoolId, action: "membership.add", entityType: "membership", entityId: `${input.userId}:${input.schoolId}`, details: { role: input.role } } });
 }

@@ -10,6 +10,7 @@ export type Action =
   | "setup.edit"
   | "members.manage"
   | "audit.read"
+  | "account.manage"
   | "program.settings";
 
 export interface Target {
@@ -30,7 +31,9 @@ function roleIn(viewer: Extract<Viewer, { kind: "member" }>, schoolId: string | 
 /**
  * May `viewer` do `action` on `target`? Program admins may do everything; school admins manage their
  * school; contributors upload and edit their school's flights and setup; readers read. Visitors who
- * are not signed in read public flights only. API tokens are further limited to their scopes.
+ * are not signed in read public flights only. API tokens are further limited to their scopes: `read`
+ * reads flights, `upload` uploads, and nothing else (no audit log, no account page, no members), on
+ * pages and routes alike. `account.manage` is a signed-in person's own account page and settings.
  */
 export function can(asked: Viewer, action: Action, target: Target): boolean {
   if (asked.kind === "local") return true;
@@ -58,9 +61,21 @@ export function can(asked: Viewer, action: Action, target: Target): boolean {
     case "members.manage":
     case "audit.read":
       return role === "school-admin";
+    case "account.manage":
+      return true;
     case "program.settings":
       return false;
   }
+}
+
+/**
+ * Schools whose audit log and deleted flights `viewer` may read: null means every school (local
+ * mode, a program admin signed in), an empty list none (visitors, readers, contributors, API tokens).
+ */
+export function auditSchoolIds(viewer: Viewer): string[] | null {
+  if (can(viewer, "audit.read", { schoolId: null })) return null;
+  if (viewer.kind !== "member") return [];
+  return viewer.memberships.map((m) => m.schoolId).filter((schoolId) => can(viewer, "audit.read", { schoolId }));
 }
 
 /** 401 when nobody is signed in, 403 when signed in but not allowed. */

@@ -14,6 +14,7 @@
 import cluster from "node:cluster";
 import http from "node:http";
 import os from "node:os";
+import { stampPeerAddress } from "./peer-address.mjs";
 
 // Nothing leaves a school's server: Next.js telemetry is off in every process this starts.
 process.env.NEXT_TELEMETRY_DISABLED = "1";
@@ -35,7 +36,10 @@ async function serve() {
   const app = createNext({ dev: false, dir: process.cwd(), hostname: host ?? "localhost", port });
   await app.prepare();
   const handle = app.getRequestHandler();
-  const server = http.createServer((request, response) => handle(request, response));
+  const server = http.createServer((request, response) => {
+    stampPeerAddress(request);
+    return handle(request, response);
+  });
   await new Promise((resolve, reject) => {
     server.once("error", reject);
     server.listen(port, host, () => resolve(undefined));

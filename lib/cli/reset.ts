@@ -6,7 +6,7 @@ export async function resetDatabase(db: Db): Promise<void> {
     db.auditEvent.deleteMany(), db.flightSummary.deleteMany(), db.layerStat.deleteMany(), db.profileLevel.deleteMany(),
     db.analysisRun.deleteMany(), db.flight.deleteMany(), db.rawFile.deleteMany(), db.calibration.deleteMany(),
     db.sensorMount.deleteMany(), db.sensor.deleteMany(), db.payload.deleteMany(), db.loggerLayout.deleteMany(), db.site.deleteMany(),
-    db.apiToken.deleteMany(), db.invitation.deleteMany(), db.membership.deleteMany(), db.session.deleteMany(), db.loginAttempt.deleteMany(),
+    db.apiToken.deleteMany(), db.invitation.deleteMany(), db.membership.deleteMany(), db.session.deleteMany(), db.loginThrottle.deleteMany(), db.signInAddress.deleteMany(),
     db.user.deleteMany(), db.school.deleteMany(), db.programSettings.deleteMany(),
   ]);
 }

@@ -5,7 +5,7 @@ import { PrismaClient as SqliteClient } from "./generated/sqlite/client.ts";
 import { PrismaClient as PostgresClient } from "./generated/postgres/client.ts";
 
 export { Prisma } from "./generated/sqlite/client.ts";
-export type { ProgramSettings, School, User, Membership, Session, Invitation, ApiToken, LoginAttempt, Site, Payload, Sensor, SensorMount, Calibration, LoggerLayout, RawFile, Flight, AnalysisRun, ProfileLevel, LayerStat, FlightSummary, AuditEvent } from "./generated/sqlite/client.ts";
+export type { ProgramSettings, School, User, Membership, Session, Invitation, ApiToken, LoginThrottle, SignInAddress, Site, Payload, Sensor, SensorMount, Calibration, LoggerLayout, RawFile, Flight, AnalysisRun, ProfileLevel, LayerStat, FlightSummary, AuditEvent } from "./generated/sqlite/client.ts";
 
 /**
  * The one database type the app uses. Both generated clients come from the same model

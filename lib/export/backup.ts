@@ -149,8 +149,8 @@ export const BACKUP_MODELS: readonly ModelCodec[] = [
   },
 ];
 
-/** Tables deliberately not in a backup: sign-in state, and the change counter the triggers keep (a restore bumps it anyway). */
-export const NOT_BACKED_UP = ["Session", "LoginAttempt", "ArchiveRevision"] as const;
+/** Tables deliberately not in a backup: sign-in state and throttles, and the change counter the triggers keep (a restore bumps it anyway). */
+export const NOT_BACKED_UP = ["Session", "LoginThrottle", "SignInAddress", "ArchiveRevision"] as const;
 
 /** Levels keep their ids (multi-row INSERTs, as lib/db/bulk.ts does, 5–8× faster than createMany). */
 async function insertLevelsWithIds(db: Db, rows: Row[]): Promise<void> {

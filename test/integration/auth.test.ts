@@ -1,6 +1,8 @@
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { acceptInvitation, AccountError, changePassword, createApiToken, createInvitation, createUser, revokeApiToken, setMembershipRole, signIn, signOut, viewerFromSession } from "../../lib/auth/accounts.ts";
-import { can, refusalStatus, type Action } from "../../lib/auth/permissions.ts";
+import { acceptInvitation, AccountError, addMembership, changePassword, createApiToken, createInvitation, createUser, revokeApiToken, setMembershipRole, signIn, signOut, viewerFromSession } from "../../lib/auth/accounts.ts";
+import { auditSchoolIds, can, refusalStatus, type Action } from "../../lib/auth/permissions.ts";
+import { ACCOUNT_RULE, ADDRESS_RULE, delayAfterFailuresMs } from "../../lib/auth/login-throttle.ts";
+import { clientAddress, forwardingHeaders, parseTrustedProxy, PEER_ADDRESS_HEADER } from "../../lib/auth/trusted-proxy.ts";
 import { resolveViewer } from "../../lib/auth/resolve-viewer.ts";
 import { flightVisibilityWhere, type Role, type Viewer } from "../../lib/auth/visibility.ts";
 import { deleteFlight, editFlight, restoreFlight } from "../../lib/ingest/flight-admin.ts";
@@ -111,19 +113,96 @@ describe.each(testEngines())("accounts, tokens and visibility on %s", (engine) =
     await changePassword(database.db, user.id, "an even better passphrase", password);
   });
 
-  test("login is rate-limited per account (in the database, shared by every process)", async () => {
+  /** Outcome counts of sign-ins: "bad-credentials" means the password was checked. */
+  const outcomes = async (tries: Array<Promise<unknown>>) => {
+    const settled = await Promise.allSettled(tries);
+    const codes = settled.map((r) => (r.status === "rejected" ? (r.reason as AccountError).code ?? String(r.reason) : "signed-in"));
+    return { checked: codes.filter((c) => c === "bad-credentials").length, limited: codes.filter((c) => c === "rate-limited").length, other: codes.filter((c) => c !== "bad-credentials" && c !== "rate-limited") };
+  };
+  /** The wait is over: what the clock would do after `nextCheckAt`. */
+  const endWait = async (key: string) => {
+    await database.db.loginThrottle.update({ where: { key }, data: { nextCheckAt: new Date(Date.now() - 1) } });
+  };
+
+  test("30 concurrent wrong passwords for one account: at most 5 are checked (counted atomically in the database)", async () => {
+    await createUser(database.db, { email: "burst-target@example.org", password, displayName: "Burst" });
+    // Issue 13: before, all 30 read "0 failures" before any was written and 17 were checked.
+    const result = await outcomes(Array.from({ length: 30 }, (_, i) => signIn(database.db, { email: "burst-target@example.org", password: "wrong wrong" }, `198.51.100.${i}`)));
+    expect(result.other).toEqual([]);
+    expect(result.checked).toBeLessThanOrEqual(ACCOUNT_RULE.freeFailures);
+    expect(result.checked + result.limited).toBe(30);
+  });
+
+  test("the owner is slowed, not locked out: after 5 wrong tries the right password works once the wait is over", async () => {
     await createUser(database.db, { email: "mallory-target@example.org", password, displayName: "Target" });
     for (let i = 0; i < 5; i++) {
       await expect(signIn(database.db, { email: "mallory-target@example.org", password: "wrong wrong" }, `10.0.0.${i}`)).rejects.toMatchObject({ code: "bad-credentials" });
     }
-    await expect(signIn(database.db, { email: "mallory-target@example.org", password }, "10.0.0.99")).rejects.toMatchObject({ code: "rate-limited" });
+    // The wait after the 5th failure is 15 s [D: ACCOUNT_RULE], far below the old 15-minute lockout.
+    const refused = await signIn(database.db, { email: "mallory-target@example.org", password }, "10.0.0.99").catch((e: unknown) => e);
+    expect(refused).toMatchObject({ code: "rate-limited" });
+    expect((refused as AccountError).retryAfterS).toBeLessThanOrEqual(15);
+    await endWait("account:mallory-target@example.org");
+    const session = await signIn(database.db, { email: "mallory-target@example.org", password }, "10.0.0.99");
+    expect((await viewerFromSession(database.db, session.sessionSecret))?.kind).toBe("member");
+    // Rows nobody touched for a day are pruned by the next successful sign-in.
+    await database.db.loginThrottle.create({ data: { key: "account:long-ago@example.org", failures: 3, updatedAt: new Date(Date.now() - 2 * 86_400_000), nextCheckAt: new Date(Date.now() - 2 * 86_400_000) } });
+    await signIn(database.db, { email: "mallory-target@example.org", password }, "10.0.0.99");
+    expect(await database.db.loginThrottle.count({ where: { key: "account:long-ago@example.org" } })).toBe(0);
+    // Signing in clears the count: the next mistake is checked at once.
+    await expect(signIn(database.db, { email: "mallory-target@example.org", password: "wrong wrong" }, "10.0.0.99")).rejects.toMatchObject({ code: "bad-credentials" });
   });
 
-  test("login is rate-limited per address", async () => {
-    for (let i = 0; i < 20; i++) {
-      await expect(signIn(database.db, { email: `nobody${i}@example.org`, password: "wrong wrong" }, "192.0.2.7")).rejects.toMatchObject({ code: "bad-credentials" });
-    }
+  test("the wait doubles after each further failure, up to 5 minutes", () => {
+    expect([4, 5, 6, 7, 8, 9, 10, 50].map((n) => delayAfterFailuresMs(ACCOUNT_RULE, n) / 1000)).toEqual([0, 15, 30, 60, 120, 240, 300, 300]); // [D] 15 s × 2^(n−5), cap 300 s
+    expect(delayAfterFailuresMs(ADDRESS_RULE, 19)).toBe(0);
+  });
+
+  test("per address: 20 failures on other emails slow that address down, but lock nobody out", async () => {
+    const admin = await database.db.user.findUniqueOrThrow({ where: { email: "admin@example.org" } });
+    // The admin signed in from the shared address before (a school's one public address).
+    await signIn(database.db, { email: "admin@example.org", password }, "192.0.2.7");
+    const sprayed = await outcomes(Array.from({ length: 30 }, (_, i) => signIn(database.db, { email: `nobody${i}@example.org`, password: "wrong wrong" }, "192.0.2.7")));
+    expect(sprayed.other).toEqual([]);
+    expect(sprayed.checked).toBeLessThanOrEqual(ADDRESS_RULE.freeFailures);
+    // Rule: from another address the admin is not affected at all.
+    expect((await signIn(database.db, { email: "admin@example.org", password }, "203.0.113.5")).userId).toBe(admin.id);
+    // Rule: from the same address, a person who signed in from it before is exempt from its limit.
+    expect((await signIn(database.db, { email: "admin@example.org", password }, "192.0.2.7")).userId).toBe(admin.id);
+    // Someone who never signed in from there waits like the guesser (slowed, until the wait ends).
     await expect(signIn(database.db, { email: "alice@example.org", password }, "192.0.2.7")).rejects.toMatchObject({ code: "rate-limited" });
+    await endWait("address:192.0.2.7");
+    await signIn(database.db, { email: "alice@example.org", password }, "192.0.2.7");
+  });
+
+  test("rotating X-Forwarded-For: without a trusted proxy every try counts against the socket address", async () => {
+    const proxy = parseTrustedProxy(undefined);
+    const addresses = Array.from({ length: 50 }, (_, i) => clientAddress(forwardingHeaders(new Headers({ [PEER_ADDRESS_HEADER]: "::ffff:192.0.2.50", "x-forwarded-for": `203.0.113.${i}` })), proxy));
+    expect(new Set(addresses)).toEqual(new Set(["192.0.2.50"]));
+    // Issue 13: before, each forged header was a fresh address and 50 of 50 were checked.
+    const result = await outcomes(addresses.map((address, i) => signIn(database.db, { email: `rotator${i}@example.org`, password: "wrong wrong" }, address)));
+    expect(result.checked).toBeLessThanOrEqual(ADDRESS_RULE.freeFailures);
+    expect(result.checked + result.limited).toBe(50);
+  });
+
+  test("with a trusted proxy configured, the address it forwarded is used (hop count or address list)", async () => {
+    const viaProxy = (forwardedFor: string) => forwardingHeaders(new Headers({ [PEER_ADDRESS_HEADER]: "10.1.2.3", "x-forwarded-for": forwardedFor }));
+    expect(clientAddress(viaProxy("198.51.100.9"), parseTrustedProxy("1"))).toBe("198.51.100.9");
+    // A client-written entry to the left of the real one is ignored.
+    expect(clientAddress(viaProxy("6.6.6.6, 198.51.100.9"), parseTrustedProxy("1"))).toBe("198.51.100.9");
+    expect(clientAddress(viaProxy("6.6.6.6, 198.51.100.9, 10.9.0.1"), parseTrustedProxy("2"))).toBe("198.51.100.9");
+    expect(clientAddress(viaProxy("6.6.6.6, 198.51.100.9"), parseTrustedProxy("10.0.0.0/8"))).toBe("198.51.100.9");
+    expect(clientAddress(viaProxy("6.6.6.6, 198.51.100.9, 10.9.0.1"), parseTrustedProxy("10.1.2.3, 10.9.0.0/16"))).toBe("198.51.100.9");
+    // The peer is not a listed proxy: its forwarded header is not believed.
+    expect(clientAddress(viaProxy("198.51.100.9"), parseTrustedProxy("10.200.0.1"))).toBe("10.1.2.3");
+    expect(() => parseTrustedProxy("proxy.example")).toThrow(/neither a hop count/);
+    // Distinct real clients behind the proxy are limited separately.
+    const proxy = parseTrustedProxy("10.0.0.0/8");
+    for (let i = 0; i < 3; i++) {
+      await expect(signIn(database.db, { email: "nobody-behind@example.org", password: "wrong wrong" }, clientAddress(viaProxy("198.51.100.77"), proxy))).rejects.toMatchObject({ code: "bad-credentials" });
+    }
+    expect((await database.db.loginThrottle.findUniqueOrThrow({ where: { key: "address:198.51.100.77" } })).failures).toBe(3);
+    expect(await database.db.loginThrottle.count({ where: { key: "address:10.1.2.3" } })).toBe(0);
   });
 
   test("invitation links join a school once and expire", async () => {
@@ -134,6 +213,76 @@ describe.each(testEngines())("accounts, tokens and visibility on %s", (engine) =
     const expired = await createInvitation(database.db, { schoolId: a.school.id, role: "reader", createdById: null });
     await database.db.invitation.update({ where: { id: expired.id }, data: { expiresAt: new Date(Date.now() - 1000) } });
     await expect(acceptInvitation(database.db, expired.secret, alice.id)).rejects.toMatchObject({ code: "invalid-invitation" });
+  });
+
+  test("an invitation only ever raises a role: a school admin opening a reader link stays school admin", async () => {
+    const head = await createUser(database.db, { email: "head@example.org", password, displayName: "Head" });
+    await addMembership(database.db, { userId: head.id, schoolId: a.school.id, role: "school-admin", byUserId: null });
+    const reader = await createInvitation(database.db, { schoolId: a.school.id, role: "reader", createdById: null });
+    // Issue 13: before, the upsert demoted the admin to reader.
+    expect(await acceptInvitation(database.db, reader.secret, head.id)).toEqual({ schoolId: a.school.id, role: "school-admin" });
+    expect((await database.db.membership.findFirstOrThrow({ where: { userId: head.id, schoolId: a.school.id } })).role).toBe("school-admin");
+    expect((await database.db.invitation.findUniqueOrThrow({ where: { id: reader.id } })).usedAt).not.toBeNull();
+    const contributor = await createUser(database.db, { email: "riser@example.org", password, displayName: "Riser" });
+    await addMembership(database.db, { userId: contributor.id, schoolId: a.school.id, role: "reader", byUserId: null });
+    const raise = await createInvitation(database.db, { schoolId: a.school.id, role: "contributor", createdById: null });
+    expect((await acceptInvitation(database.db, raise.secret, contributor.id)).role).toBe("contributor");
+  });
+
+  test("role changes apply to existing members only: nobody is added by id without an invitation", async () => {
+    const outsider = await createUser(database.db, { email: "outsider@example.org", password, displayName: "Outsider" });
+    const head = await database.db.user.findUniqueOrThrow({ where: { email: "head@example.org" } });
+    // Issue 13: before, the upsert created a school-admin membership for anybody's id.
+    await expect(setMembershipRole(database.db, { userId: outsider.id, schoolId: a.school.id, role: "school-admin", byUserId: head.id })).rejects.toMatchObject({ code: "not-found" });
+    await expect(setMembershipRole(database.db, { userId: "no-such-user", schoolId: a.school.id, role: "reader", byUserId: head.id })).rejects.toMatchObject({ code: "not-found" });
+    await expect(setMembershipRole(database.db, { userId: outsider.id, schoolId: a.school.id, role: null, byUserId: head.id })).rejects.toMatchObject({ code: "not-found" });
+    expect(await database.db.membership.count({ where: { userId: outsider.id } })).toBe(0);
+    const riser = await database.db.user.findUniqueOrThrow({ where: { email: "riser@example.org" } });
+    await setMembershipRole(database.db, { userId: riser.id, schoolId: a.school.id, role: "reader", byUserId: head.id });
+    expect((await database.db.membership.findFirstOrThrow({ where: { userId: riser.id, schoolId: a.school.id } })).role).toBe("reader");
+    await expect(addMembership(database.db, { userId: riser.id, schoolId: a.school.id, role: "reader", byUserId: null })).rejects.toMatchObject({ code: "already-member" });
+  });
+
+  test("changing the password signs out every other session and keeps the current one", async () => {
+    const user = await createUser(database.db, { email: "rotate@example.org", password, displayName: "Rotate" });
+    const here = await signIn(database.db, { email: "rotate@example.org", password }, "127.0.0.3");
+    const laptop = await signIn(database.db, { email: "rotate@example.org", password }, "127.0.0.4");
+    const stolen = await signIn(database.db, { email: "rotate@example.org", password }, "127.0.0.5");
+    const result = await changePassword(database.db, user.id, password, "a brand new passphrase", { keepSessionSecret: here.sessionSecret });
+    expect(result.sessionsEnded).toBe(2);
+    expect((await viewerFromSession(database.db, here.sessionSecret))?.kind).toBe("member");
+    // Issue 13: before, both other sessions stayed signed in.
+    expect(await viewerFromSession(database.db, laptop.sessionSecret)).toBeNull();
+    expect(await viewerFromSession(database.db, stolen.sessionSecret)).toBeNull();
+  });
+
+  test("an upload-only token of a school admin opens neither the audit log nor the account page", async () => {
+    const head = await database.db.user.findUniqueOrThrow({ where: { email: "head@example.org" } });
+    const session = await signIn(database.db, { email: "head@example.org", password }, "127.0.0.6");
+    const signedIn = (await viewerFromSession(database.db, session.sessionSecret))!;
+    expect(auditSchoolIds(signedIn)).toEqual([a.school.id]);
+    expect(can(signedIn, "account.manage", { schoolId: null })).toBe(true);
+    const { token } = await createApiToken(database.db, { userId: head.id, schoolId: a.school.id, name: "uploader", scopes: ["upload"] });
+    const uploader = (await resolveViewer(database.db, { authorization: `Bearer ${token}` })).viewer!;
+    // Issue 13: before, the audit page listed school A's events and deleted flights for this token.
+    expect(auditSchoolIds(uploader)).toEqual([]);
+    expect(can(uploader, "account.manage", { schoolId: null })).toBe(false);
+    expect(can(uploader, "members.manage", { schoolId: a.school.id })).toBe(false);
+    expect(can(uploader, "flight.upload", { schoolId: a.school.id })).toBe(true);
+    const admin = await database.db.user.findUniqueOrThrow({ where: { email: "admin@example.org" } });
+    const adminToken = await createApiToken(database.db, { userId: admin.id, schoolId: a.school.id, name: "admin reader", scopes: ["read", "upload"] });
+    const adminViaToken = (await resolveViewer(database.db, { authorization: `Bearer ${adminToken.token}` })).viewer!;
+    expect(auditSchoolIds(adminViaToken)).toEqual([]);
+    expect(auditSchoolIds({ kind: "local" })).toBeNull();
+    expect(auditSchoolIds({ kind: "member", userId: admin.id, isProgramAdmin: true, schoolIds: [], memberships: [] })).toBeNull();
+  });
+
+  test("revoking someone else's token is refused and changes nothing", async () => {
+    const head = await database.db.user.findUniqueOrThrow({ where: { email: "head@example.org" } });
+    const alice = await database.db.user.findUniqueOrThrow({ where: { email: "alice@example.org" } });
+    const { id } = await createApiToken(database.db, { userId: alice.id, schoolId: a.school.id, name: "alice's", scopes: ["read"] });
+    await expect(revokeApiToken(database.db, id, head.id)).rejects.toMatchObject({ code: "not-found" });
+    expect((await database.db.apiToken.findUniqueOrThrow({ where: { id } })).revokedAt).toBeNull();
   });
 
   test("a school A token cannot read school B's private flights nor upload to B; revoked tokens stop at once", async () => {
@@ -190,7 +339,7 @@ describe.each(testEngines())("accounts, tokens and visibility on %s", (engine) =
     // Alice contributes to A, not B.
     await expect(editFlight(database.db, aliceViewer, programFlightB, { title: "hijacked" })).rejects.toBeInstanceOf(PermissionError);
     await expect(deleteFlight(database.db, aliceViewer, programFlightB)).rejects.toMatchObject({ status: 403 });
-    await setMembershipRole(database.db, { userId: alice.id, schoolId: b.school.id, role: "contributor", byUserId: null });
+    await addMembership(database.db, { userId: alice.id, schoolId: b.school.id, role: "contributor", byUserId: null });
     const aliceInB = (await viewerFromSession(database.db, session.sessionSecret))!;
     await editFlight(database.db, aliceInB, programFlightB, { visibility: "public", title: "<script>alert(1)</script>" });
     await deleteFlight(database.db, aliceInB, programFlightB);

@@ -1,5 +1,7 @@
 import "server-only";
 import { PermissionError } from "@/lib/auth/permissions";
+import { publicOrigin } from "@/lib/auth/trusted-proxy";
+import { getEnv } from "@/lib/env";
 import type { z } from "zod";
 import { IngestFailure, type IngestIssue } from "@/lib/ingest";
 
@@ -63,7 +65,12 @@ export function withErrors<A extends unknown[]>(handler: (...args: A) => Promise
   };
 }
 
-/** Absolute URL of a path on this server, from the incoming request. */
+/**
+ * Absolute URL of a path on this server as clients reach it: LAPSEBANK_PUBLIC_URL, else the host a
+ * trusted proxy forwarded, else the request's own URL.
+ */
 export function absoluteUrl(request: Request, path: string): string {
-  return new URL(path, request.url).toString();
+  const env = getEnv();
+  const origin = publicOrigin({ requestUrl: request.url, headers: request.headers, publicUrl: env.LAPSEBANK_PUBLIC_URL, proxy: env.LAPSEBANK_TRUSTED_PROXY });
+  return new URL(path, origin).toString();
 }

@@ -8,8 +8,15 @@ import { InviteForm } from "@/app/account/_components/account-forms";
 
 export const metadata: Metadata = { title: "Members" };
 
-export default async function SchoolMembersPage({ params }: { params: Promise<{ id: string }> }) {
-  const { id } = await params;
+/** Refusals a members form redirects back with (codes, so a link cannot put any text on the page). */
+const ERRORS: Record<string, string> = {
+  forbidden: "Only this school's admins and the program admins manage members.",
+  "unknown-role": "Choose a role: reader, contributor or school admin.",
+  "not-a-member": "That person is not a member of this school; invite them with a link instead.",
+};
+
+export default async function SchoolMembersPage({ params, searchParams }: { params: Promise<{ id: string }>; searchParams: Promise<{ error?: string | string[] }> }) {
+  const [{ id }, { error }] = await Promise.all([params, searchParams]);
   const viewer = await getViewer();
   if (!can(viewer, "members.manage", { schoolId: id })) {
     return (
@@ -24,6 +31,7 @@ export default async function SchoolMembersPage({ params }: { params: Promise<{ 
   return (
     <>
       <h1>{school.name}: members</h1>
+      {typeof error === "string" && ERRORS[error] ? <p className="notice notice-error" role="alert">{ERRORS[error]}</p> : null}
       {school.memberships.length === 0 ? <p className="muted">No members yet: make an invitation link below.</p> : (
         <div className="table-wrap">
           <table>
