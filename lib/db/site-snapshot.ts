@@ -6,7 +6,7 @@ export interface SiteSnapshot {
   timeZone: string;
 }
 
-/** A run's record of its site (AnalysisRun columns); null where a backup from before they existed was restored. */
+/** A run's record of its site (AnalysisRun columns; nullable in the schema, filled for every run). */
 export interface RunSiteSnapshot {
   siteLatitudeDeg: number | null;
   siteLongitudeDeg: number | null;
