@@ -119,7 +119,7 @@ export async function writeSyntheticArchive(handle: Pick<DbHandle, "db" | "engin
       flights.push(
         `('${flightId}', '${school.id}', '${site.id}', '${layout.id}', '${rawId}', '${title}', '', ${dateLiteral(engine, launchMs)}, 'program', TRUE, ${dateLiteral(engine, now)}, ${dateLiteral(engine, now)})`,
       );
-      runs.push(`('${runId}', '${flightId}', 'synthetic', '{}', '{}', '{}', '[]', '', '{}', ${levelsPerFlight}, 0, 'synthetic', TRUE, ${dateLiteral(engine, now)})`);
+      runs.push(`('${runId}', '${flightId}', 'synthetic', '{}', '{}', '{}', '[]', '', '{}', ${levelsPerFlight}, 0, ${site.latitudeDeg}, ${site.longitudeDeg}, ${site.elevationM}, '${site.timeZone}', 'synthetic', TRUE, ${dateLiteral(engine, now)})`);
 
       const groundM = def.elevationM;
       const firstBin = Math.floor(groundM / binSizeM);
@@ -151,7 +151,7 @@ export async function writeSyntheticArchive(handle: Pick<DbHandle, "db" | "engin
     const statements = [
       `INSERT INTO "RawFile" ("id", "schoolId", "name", "sizeBytes", "sha256", "bytes", "uploadedAt") VALUES ${rawFiles.join(", ")}`,
       `INSERT INTO "Flight" ("id", "schoolId", "siteId", "layoutId", "rawFileId", "title", "notes", "launchAtUtc", "visibility", "synthetic", "createdAt", "updatedAt") VALUES ${flights.join(", ")}`,
-      `INSERT INTO "AnalysisRun" ("id", "flightId", "analysisVersion", "parameters", "calibrationSpec", "layoutSpec", "warnings", "qcFlags", "removedCounts", "rowCount", "skippedRowCount", "reason", "isCurrent", "createdAt") VALUES ${runs.join(", ")}`,
+      `INSERT INTO "AnalysisRun" ("id", "flightId", "analysisVersion", "parameters", "calibrationSpec", "layoutSpec", "warnings", "qcFlags", "removedCounts", "rowCount", "skippedRowCount", "siteLatitudeDeg", "siteLongitudeDeg", "siteElevationM", "siteTimeZone", "reason", "isCurrent", "createdAt") VALUES ${runs.join(", ")}`,
       `INSERT INTO "FlightSummary" ("id", "runId", "flightId", "isCurrent", "schoolId", "siteId", "launchAtUtc", "year", "month", "dayOfYear", "season", "seasonName", "localHour", "hoursAfterSunrise", "solarElevationDeg", "latitudeDeg", "launchAltitudeM", "burstAltitudeM", "maxAltitudeM", "minAltitudeM", "surfaceTemperatureK", "troposphericLapseRateKPerKm", "troposphericLapseRateStdErrKPerKm", "tropopauseAltitudeM", "tropopauseTemperatureK", "tropopausePressureHpa", "tropopauseStatus", "secondTropopauseAltitudeM", "hasSurfaceInversion", "surfaceInversionDepthM", "surfaceInversionStrengthK", "stratosphericLapseRateKPerKm", "hasDescent", "qcFlags", "qcFlagged") VALUES ${summaries.join(", ")}`,
     ];
     for (let k = 0; k < levels.length; k += LEVEL_ROWS_PER_INSERT) {

@@ -4,7 +4,7 @@ import { revalidatePath } from "next/cache";
 import { z } from "zod";
 import { getDb } from "@/lib/db";
 import {
-  calibrationInputSchema, createCalibration, createLayout, createPayload, createSensor, createSite, OverlappingCalibrationError,
+  calibrationInputSchema, createCalibration, createLayout, createPayload, createSensor, createSite, flightsAnalysedWithOtherSite, OverlappingCalibrationError,
   payloadInputSchema, reprocessFlight, selectFlights, sensorInputSchema, siteInputSchema, suggestLayout, updateCalibration,
   type LayoutSuggestion, type ReprocessOutcome,
 } from "@/lib/ingest";
@@ -43,8 +43,11 @@ const optionalId = z.preprocess((v) => (v === "" || v === null ? undefined : v),
 
 const siteFormSchema = siteUpdateSchema.extend({ id: optionalId, schoolId: z.string().min(1, "Choose a school") });
 
-/** Creates a launch site, or corrects one when `id` is given. */
-export async function saveSite(input: z.input<typeof siteFormSchema>): Promise<ActionResult<{ id: string }>> {
+/**
+ * Creates a launch site, or corrects one when `id` is given; a correction counts the site's flights
+ * whose current run used other site values (the form then offers their re-analysis).
+ */
+export async function saveSite(input: z.input<typeof siteFormSchema>): Promise<ActionResult<{ id: string; affectedFlightCount: number }>> {
   const parsed = siteFormSchema.safeParse(input);
   if (!parsed.success) return zodFailure(parsed.error);
   const { id, ...data } = parsed.data;
@@ -57,12 +60,12 @@ export async function saveSite(input: z.input<typeof siteFormSchema>): Promise<A
       const { schoolId: _school, ...changes } = data;
       await updateSite(db, id, changes, await currentActor("web setup"));
       refreshSetup();
-      return actionOk({ id });
+      return actionOk({ id, affectedFlightCount: (await flightsAnalysedWithOtherSite(db, id)).length });
     }
     if (!(await mayEdit(data.schoolId))) return actionFailure(NOT_ALLOWED);
     const site = await createSite(db, siteInputSchema.parse(data), await currentActor("web setup"));
     refreshSetup();
-    return actionOk({ id: site.id });
+    return actionOk({ id: site.id, affectedFlightCount: 0 });
   } catch (error) {
     return knownFailure(error);
   }

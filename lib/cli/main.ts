@@ -30,7 +30,7 @@ Commands:
   ingest <files...>            upload logger files through the same pipeline as the web
       --school ID --site ID --layout ID [--sensor ID] [--payload ID] [--calibration ID]
       [--launch ISO-UTC] [--visibility school|program|public] [--lenient] [--title TEXT]
-  reprocess (--all | --flight ID... | --calibration ID | --layout ID) [--force]
+  reprocess (--all | --flight ID... | --calibration ID | --layout ID | --site ID) [--force]
                                re-analyse from the stored raw bytes as new runs (old runs are kept);
                                safe to interrupt and run again: up-to-date flights are skipped
   admin create --email E --name N
@@ -256,12 +256,12 @@ async function runReprocess(args: string[]): Promise<number> {
     args,
     options: {
       all: { type: "boolean", default: false }, flight: { type: "string", multiple: true },
-      calibration: { type: "string" }, layout: { type: "string" }, force: { type: "boolean", default: false },
+      calibration: { type: "string" }, layout: { type: "string" }, site: { type: "string" }, force: { type: "boolean", default: false },
     },
   });
-  const chosen = [values.all, values.flight?.length, values.calibration, values.layout].filter(Boolean).length;
+  const chosen = [values.all, values.flight?.length, values.calibration, values.layout, values.site].filter(Boolean).length;
   if (chosen !== 1) {
-    console.error("reprocess: give exactly one of --all, --flight ID (repeatable), --calibration ID, --layout ID");
+    console.error("reprocess: give exactly one of --all, --flight ID (repeatable), --calibration ID, --layout ID, --site ID");
     return 2;
   }
   const selection: ReprocessSelection = values.all
@@ -270,7 +270,9 @@ async function runReprocess(args: string[]): Promise<number> {
       ? { flightIds: values.flight }
       : values.calibration
         ? { calibrationId: values.calibration }
-        : { layoutId: values.layout as string };
+        : values.site
+          ? { siteId: values.site }
+          : { layoutId: values.layout as string };
   const controller = new AbortController();
   process.once("SIGINT", () => {
     console.error("\nInterrupted: finishing the current flight; run the same command again to resume.");

@@ -348,11 +348,29 @@ export async function restoreArchive(handle: Pick<DbHandle, "db" | "engine">, fi
       report.rowCounts[codec.model] = rows;
       if (codec.model === "RawFile") report.rawFiles = rows;
     }
+    await fillRunSiteSnapshots(db);
     if (handle.engine === "postgres") await resetSequences(db);
     return report;
   } finally {
     await zip.close();
   }
+}
+
+/**
+ * A backup written before runs recorded their site (migration run_site_snapshot) restores with those
+ * columns empty: fill them in the way that migration does (latitude from the run's own summary, the
+ * rest from the site), so the restored archive matches one that was migrated. Runs that have them keep them.
+ */
+async function fillRunSiteSnapshots(db: Db): Promise<void> {
+  await db.$executeRaw`
+    UPDATE "AnalysisRun" SET
+      "siteLatitudeDeg" = COALESCE("siteLatitudeDeg",
+        (SELECT fs."latitudeDeg" FROM "FlightSummary" fs WHERE fs."runId" = "AnalysisRun"."id"),
+        (SELECT s."latitudeDeg" FROM "Flight" f JOIN "Site" s ON s."id" = f."siteId" WHERE f."id" = "AnalysisRun"."flightId")),
+      "siteLongitudeDeg" = COALESCE("siteLongitudeDeg", (SELECT s."longitudeDeg" FROM "Flight" f JOIN "Site" s ON s."id" = f."siteId" WHERE f."id" = "AnalysisRun"."flightId")),
+      "siteElevationM" = COALESCE("siteElevationM", (SELECT s."elevationM" FROM "Flight" f JOIN "Site" s ON s."id" = f."siteId" WHERE f."id" = "AnalysisRun"."flightId")),
+      "siteTimeZone" = COALESCE("siteTimeZone", (SELECT s."timeZone" FROM "Flight" f JOIN "Site" s ON s."id" = f."siteId" WHERE f."id" = "AnalysisRun"."flightId"))
+    WHERE "siteLatitudeDeg" IS NULL OR "siteLongitudeDeg" IS NULL OR "siteElevationM" IS NULL OR "siteTimeZone" IS NULL`;
 }
 
 async function withRawBytes(zip: ZipReader, row: Row): Promise<Row> {

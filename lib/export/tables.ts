@@ -160,7 +160,7 @@ export const FLIGHTS_TABLE: ExportTable<FlightExportRow> = {
 export const RUNS_TABLE: ExportTable<AnalysisRun> = {
   name: "runs",
   title: "Analysis runs",
-  description: "Provenance of every number: the current analysis run of each exported flight, with the analysis version and parameters, the calibration and logger layout exactly as applied.",
+  description: "Provenance of every number: the current analysis run of each exported flight, with the analysis version and parameters, the calibration and logger layout exactly as applied, and the site values it was analysed with.",
   primaryKey: ["runId"],
   foreignKeys: [
     { fields: "flightId", reference: { resource: "flights", fields: "flightId" } },
@@ -180,6 +180,10 @@ export const RUNS_TABLE: ExportTable<AnalysisRun> = {
     { name: "removedCounts", type: "object", required: true, description: "Samples removed by each cleaning step (JSON)", get: (r) => r.removedCounts },
     { name: "rowCount", type: "integer", required: true, description: "Data rows read from the raw file", get: (r) => r.rowCount },
     { name: "skippedRowCount", type: "integer", required: true, description: "Rows skipped as unreadable", get: (r) => r.skippedRowCount },
+    { name: "siteLatitudeDeg", type: "number", unit: "degrees_north", cfStandardName: "latitude", description: "Launch-site latitude the run was analysed with, WGS 84", get: (r) => r.siteLatitudeDeg },
+    { name: "siteLongitudeDeg", type: "number", unit: "degrees_east", cfStandardName: "longitude", description: "Launch-site longitude the run was analysed with, WGS 84", get: (r) => r.siteLongitudeDeg },
+    { name: "siteElevationM", type: "number", unit: "m", description: "Launch-site elevation above mean sea level the run was analysed with", get: (r) => r.siteElevationM },
+    { name: "siteTimeZone", type: "string", description: "IANA time zone of the site the run was analysed with", get: (r) => r.siteTimeZone },
   ],
 };
 

@@ -6,4 +6,4 @@ export { prepareAnalysis, sha256Hex, directCalibrationFor } from "./pipeline.ts"
 export { ingestFlightFile, writeAnalysisRun, getProgramParameters, findCalibrationAt, type IngestResult, type IngestRequest, type Actor } from "./store.ts";
 export { uploadMetadataSchema, temperatureCalibrationSchema, analysisParametersSchema, visibilitySchema, type UploadMetadata } from "./schemas.ts";
 export * from "./setup.ts";
-export { reprocessFlight, reprocessFlights, selectFlights, type ReprocessOutcome, type ReprocessSelection, type RunChange } from "./reprocess.ts";
+export { flightsAnalysedWithOtherSite, reprocessFlight, reprocessFlights, selectFlights, type ReprocessOutcome, type ReprocessSelection, type RunChange } from "./reprocess.ts";

@@ -4,8 +4,9 @@ import type { Db } from "../db/index.ts";
 import { IngestFailure } from "./errors.ts";
 import { directCalibrationFor, prepareAnalysis } from "./pipeline.ts";
 import { findCalibrationAt, parametersForSensor, parseStoredCalibration, parseStoredLayout, writeAnalysisRun, type Actor } from "./store.ts";
+import { runUsedSite } from "../db/site-snapshot.ts";
 
-export type ReprocessSelection = { all: true } | { flightIds: string[] } | { calibrationId: string } | { layoutId: string };
+export type ReprocessSelection = { all: true } | { flightIds: string[] } | { calibrationId: string } | { layoutId: string } | { siteId: string };
 
 export interface ReprocessOutcome {
   flightId: string;
@@ -24,6 +25,23 @@ export interface RunChange {
   analysisVersionChanged: boolean;
   calibrationChanged: boolean;
   parametersChanged: boolean;
+  /** The site's latitude, longitude, elevation or time zone differ from those the previous run used. */
+  siteChanged: boolean;
+}
+
+/**
+ * The site's flights (not deleted) whose current run was analysed with other site values than the
+ * site has now, oldest first: what a correction of the site changes, and what re-analysis would redo.
+ */
+export async function flightsAnalysedWithOtherSite(db: Db, siteId: string): Promise<string[]> {
+  const site = await db.site.findUnique({ where: { id: siteId } });
+  if (!site) return [];
+  const flights = await db.flight.findMany({
+    where: { siteId, deletedAt: null },
+    orderBy: [{ launchAtUtc: "asc" }, { id: "asc" }],
+    select: { id: true, runs: { where: { isCurrent: true }, select: { siteLatitudeDeg: true, siteLongitudeDeg: true, siteElevationM: true, siteTimeZone: true } } },
+  });
+  return flights.filter((f) => !f.runs[0] || !runUsedSite(f.runs[0], site)).map((f) => f.id);
 }
 
 /** Flight ids a selection covers (not deleted), oldest first so a resumed run continues in order. */
@@ -33,6 +51,7 @@ export async function selectFlights(db: Db, selection: ReprocessSelection): Prom
   if ("all" in selection) where = base;
   else if ("flightIds" in selection) where = { ...base, id: { in: selection.flightIds } };
   else if ("layoutId" in selection) where = { ...base, layoutId: selection.layoutId };
+  else if ("siteId" in selection) where = { ...base, siteId: selection.siteId };
   else {
     const calibration = await db.calibration.findUnique({ where: { id: selection.calibrationId } });
     if (!calibration) return [];
@@ -66,8 +85,8 @@ async function currentCalibrationFor(db: Db, flight: { sensorId: string | null; 
 }
 
 /**
- * Re-runs the pipeline for one flight from its stored raw bytes with today's calibration, layout and
- * program parameters, as a new current run; the old run is kept. Skips a flight whose current run
+ * Re-runs the pipeline for one flight from its stored raw bytes with today's calibration, layout,
+ * program parameters and site, as a new current run; the old run is kept. Skips a flight whose current run
  * already used exactly those inputs (so an interrupted batch resumes where it stopped) unless `force`.
  * One transaction per flight: a failure leaves that flight on its previous run.
  */
@@ -87,7 +106,8 @@ export async function reprocessFlight(db: Db, flightId: string, options: { reaso
       previous.analysisVersion === ANALYSIS_VERSION &&
       isDeepStrictEqual(previous.parameters, parameters) &&
       isDeepStrictEqual(previous.calibrationSpec, calibration.spec) &&
-      isDeepStrictEqual(previous.layoutSpec, layout);
+      isDeepStrictEqual(previous.layoutSpec, layout) &&
+      runUsedSite(previous, flight.site);
     if (sameInputs && !options.force) return { flightId, status: "up-to-date", runId: previous.id };
 
     // The file is read the way it was when stored: a lenient upload (rows sorted or skipped) would fail
@@ -101,7 +121,7 @@ export async function reprocessFlight(db: Db, flightId: string, options: { reaso
     const runId = await db.$transaction(
       async (tx) => {
         const id = await writeAnalysisRun(tx, {
-          flightId, schoolId: flight.schoolId, siteId: flight.siteId, latitudeDeg: flight.site.latitudeDeg,
+          flightId, schoolId: flight.schoolId, siteId: flight.siteId, site: flight.site,
           prepared, parameters, calibrationId: calibration.id, calibrationSpec: calibration.spec, layout, reason: options.reason,
         });
         await tx.flight.update({ where: { id: flightId }, data: { launchAtUtc: prepared.launchAtUtc } });
@@ -123,6 +143,7 @@ export async function reprocessFlight(db: Db, flightId: string, options: { reaso
         analysisVersionChanged: previous?.analysisVersion !== ANALYSIS_VERSION,
         calibrationChanged: !isDeepStrictEqual(previous?.calibrationSpec, calibration.spec),
         parametersChanged: !isDeepStrictEqual(previous?.parameters, parameters),
+        siteChanged: previous === null || !runUsedSite(previous, flight.site),
       },
     };
   } catch (error) {

@@ -1,6 +1,7 @@
 import type { Db, DbTransaction } from "../db/index.ts";
 import { Prisma } from "../db/index.ts";
 import { insertProfileLevels } from "../db/bulk.ts";
+import type { SiteSnapshot } from "../db/site-snapshot.ts";
 import { getEnv } from "../env.ts";
 import type { AnalysisParameters, TemperatureCalibration } from "../analysis/types.ts";
 import { fileIssue, IngestFailure, type IngestIssue } from "./errors.ts";
@@ -148,7 +149,7 @@ export async function ingestFlightFile(db: Db, request: IngestRequest, options: 
         });
         await options.afterWrite?.("flight");
         const runId = await writeAnalysisRun(tx, {
-          flightId: flight.id, schoolId: meta.schoolId, siteId: site.id, latitudeDeg: site.latitudeDeg,
+          flightId: flight.id, schoolId: meta.schoolId, siteId: site.id, site,
           prepared: finalPrepared, parameters, calibrationId, calibrationSpec, layout, reason: "upload",
         });
         await options.afterWrite?.("run");
@@ -248,12 +249,12 @@ function finiteOrNull(value: number | null | undefined): number | null {
 
 /**
  * Writes one analysis run with its levels, layers and summary, and makes it the flight's
- * current run. Used by upload and by re-analysis.
+ * current run. Used by upload and by re-analysis. `site` is the site the analysis was made with.
  */
 export async function writeAnalysisRun(
   tx: DbTransaction,
   args: {
-    flightId: string; schoolId: string; siteId: string; latitudeDeg: number;
+    flightId: string; schoolId: string; siteId: string; site: SiteSnapshot;
     prepared: PreparedAnalysis; parameters: AnalysisParameters;
     calibrationId: string | null; calibrationSpec: TemperatureCalibration; layout: LoggerLayoutSpec; reason: string;
   },
@@ -280,6 +281,7 @@ export async function writeAnalysisRun(
       removedCounts: analysis.qc.removed as unknown as Prisma.InputJsonValue,
       rowCount: args.prepared.rowCount,
       skippedRowCount: args.prepared.skippedRows.length,
+      siteLatitudeDeg: args.site.latitudeDeg, siteLongitudeDeg: args.site.longitudeDeg, siteElevationM: args.site.elevationM, siteTimeZone: args.site.timeZone,
       reason: args.reason,
       isCurrent: true,
     },
@@ -310,7 +312,7 @@ export async function writeAnalysisRun(
       launchAtUtc: args.prepared.launchAtUtc, year: launchTime.year, month: launchTime.month, dayOfYear: launchTime.dayOfYear,
       season: launchTime.season, seasonName: launchTime.seasonName, localHour: launchTime.localHour,
       hoursAfterSunrise: finiteOrNull(launchTime.hoursAfterSunrise), solarElevationDeg: launchTime.solarElevationDeg,
-      latitudeDeg: args.latitudeDeg,
+      latitudeDeg: args.site.latitudeDeg,
       launchAltitudeM: finiteOrNull(s.launchAltitudeM), burstAltitudeM: finiteOrNull(s.burstAltitudeM), maxAltitudeM: finiteOrNull(s.maxAltitudeM),
       minAltitudeM: finiteOrNull(s.minAltitudeM),
       surfaceTemperatureK: finiteOrNull(s.surfaceTemperatureK),

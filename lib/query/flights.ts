@@ -1,5 +1,6 @@
 import "server-only";
 import { getDb, type Db, type Prisma } from "../db/index.ts";
+import { runUsedSite } from "../db/site-snapshot.ts";
 import { flightVisibilityWhere, type Viewer } from "../auth/visibility.ts";
 import { archiveFlightWhere, type ArchiveFilter } from "./archive-filter.ts";
 
@@ -137,6 +138,8 @@ export async function getFlight(viewer: Viewer, flightId: string, db: Db = getDb
       parameters: currentRun.parameters,
       calibrationId: currentRun.calibrationId,
       calibrationSpec: currentRun.calibrationSpec,
+      site: { latitudeDeg: currentRun.siteLatitudeDeg, longitudeDeg: currentRun.siteLongitudeDeg, elevationM: currentRun.siteElevationM, timeZone: currentRun.siteTimeZone },
+      siteCorrectedSince: !runUsedSite(currentRun, flight.site),
       warnings: (currentRun.warnings ?? []) as Array<{ code: string; message: string }>,
       qcFlags: currentRun.qcFlags ? currentRun.qcFlags.split(",") : [],
       removedCounts: currentRun.removedCounts as Record<string, number>,

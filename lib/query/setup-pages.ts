@@ -27,10 +27,10 @@ export async function listSetupSites(db: Db = getDb()) {
 }
 
 export async function getSetupSite(siteId: string, db: Db = getDb()) {
-  const site = await db.site.findUnique({ where: { id: siteId }, include: { school: { select: { name: true } } } });
+  const site = await db.site.findUnique({ where: { id: siteId }, include: { school: { select: { name: true } }, _count: { select: { flights: { where: { deletedAt: null } } } } } });
   if (!site) return null;
-  const { school, createdAt, ...rest } = site;
-  return { ...rest, schoolName: school.name, createdAt: iso(createdAt) };
+  const { school, createdAt, _count, ...rest } = site;
+  return { ...rest, schoolName: school.name, createdAt: iso(createdAt), flightCount: _count.flights };
 }
 
 export async function listSetupPayloads(db: Db = getDb()) {
@@ -162,6 +162,8 @@ export interface RunDifference {
   analysisVersionChanged: { from: string; to: string } | null;
   calibrationChanged: boolean;
   layoutChanged: boolean;
+  /** The site's latitude, longitude, elevation or time zone as analysed differ. */
+  siteChanged: boolean;
   /** Names of the analysis parameters whose values differ. */
   changedParameters: string[];
 }
@@ -171,6 +173,7 @@ interface RunForDifference {
   parameters: unknown;
   calibrationSpec: unknown;
   layoutSpec: unknown;
+  site: { latitudeDeg: number | null; longitudeDeg: number | null; elevationM: number | null; timeZone: string | null };
   tropopauseAltitudeM: number | null;
   troposphericLapseRateKPerKm: number | null;
   surfaceTemperatureK: number | null;
@@ -191,6 +194,7 @@ export function compareRuns(before: RunForDifference, after: RunForDifference): 
     analysisVersionChanged: before.analysisVersion === after.analysisVersion ? null : { from: before.analysisVersion, to: after.analysisVersion },
     calibrationChanged: !isDeepStrictEqual(before.calibrationSpec, after.calibrationSpec),
     layoutChanged: !isDeepStrictEqual(before.layoutSpec, after.layoutSpec),
+    siteChanged: !isDeepStrictEqual(before.site, after.site),
     changedParameters: names.filter((n) => !isDeepStrictEqual(paramsBefore[n], paramsAfter[n])),
   };
 }
@@ -209,6 +213,7 @@ export async function getRunHistory(viewer: Viewer, flightId: string, db: Db = g
   });
   const rows = runs.map((r) => ({
     analysisVersion: r.analysisVersion, parameters: r.parameters, calibrationSpec: r.calibrationSpec, layoutSpec: r.layoutSpec,
+    site: { latitudeDeg: r.siteLatitudeDeg, longitudeDeg: r.siteLongitudeDeg, elevationM: r.siteElevationM, timeZone: r.siteTimeZone },
     tropopauseAltitudeM: r.summary?.tropopauseAltitudeM ?? null,
     troposphericLapseRateKPerKm: r.summary?.troposphericLapseRateKPerKm ?? null,
     surfaceTemperatureK: r.summary?.surfaceTemperatureK ?? null,

@@ -85,6 +85,34 @@ describe("backup and restore", () => {
     expect(await last.db.profileLevel.count({ where: { run: { flightId: result.flightId } } })).toBeGreaterThan(10);
   });
 
+  test("a backup made before runs recorded their site restores with each run's site filled in as the migration does", async () => {
+    const empty = await createTestDatabase("sqlite");
+    try {
+      const source = databases[0]?.db as Db;
+      const file = path.join(dir, "before-site-snapshot.zip");
+      await backupArchive(source, file);
+      // The same backup without the four run columns, as an older Lapsebank wrote it.
+      const { unzipSync, zipSync } = await import("fflate");
+      const files = unzipSync(new Uint8Array(fs.readFileSync(file)));
+      const columns = ["siteLatitudeDeg", "siteLongitudeDeg", "siteElevationM", "siteTimeZone"];
+      for (const name of Object.keys(files).filter((n) => n.startsWith("tables/AnalysisRun-"))) {
+        const lines = new TextDecoder().decode(files[name]).split("\n").filter(Boolean);
+        const stripped = lines.map((line) => JSON.stringify(Object.fromEntries(Object.entries(JSON.parse(line) as Row).filter(([k]) => !columns.includes(k)))));
+        expect(stripped.join("\n")).not.toContain("siteTimeZone");
+        files[name] = new TextEncoder().encode(`${stripped.join("\n")}\n`);
+      }
+      const old = path.join(dir, "old.zip");
+      fs.writeFileSync(old, zipSync(files));
+      await restoreArchive(empty, old);
+      const select = { id: true, siteLatitudeDeg: true, siteLongitudeDeg: true, siteElevationM: true, siteTimeZone: true } as const;
+      const restored = await empty.db.analysisRun.findMany({ orderBy: { id: "asc" }, select });
+      expect(restored.length).toBe(6);
+      expect(restored).toEqual(await source.analysisRun.findMany({ orderBy: { id: "asc" }, select }));
+    } finally {
+      await empty.drop();
+    }
+  });
+
   test("restore refuses a database that is not empty, and says why", async () => {
     const target = databases[0] as TestDatabase;
     const file = path.join(dir, "refuse.zip");

@@ -6,7 +6,7 @@ import { ingestFlightFile } from "../../lib/ingest/index.ts";
 import { createExport } from "../../lib/export/export.ts";
 import { ExportRequestError } from "../../lib/export/read.ts";
 import { unguardTextCell } from "../../lib/export/csv.ts";
-import { FLIGHTS_TABLE, LAYERS_TABLE, LEVELS_TABLE } from "../../lib/export/tables.ts";
+import { FLIGHTS_TABLE, LAYERS_TABLE, LEVELS_TABLE, RUNS_TABLE } from "../../lib/export/tables.ts";
 import { LOCAL_VIEWER, type Viewer } from "../../lib/auth/visibility.ts";
 import { listFlights } from "../../lib/query/flights.ts";
 import { archiveFilterSchema } from "../../lib/query/archive-filter.ts";
@@ -142,6 +142,14 @@ describe.each(testEngines())("export on %s", (engine) => {
       expect(layer).toBeDefined();
       if (!layer) continue;
       for (const field of LAYERS_TABLE.fields) expect(readCell(field.type, row[field.name]), field.name).toEqual(stored(field.get({ ...layer, flightId: layer.run.flightId })));
+    }
+
+    // Runs by id, every field: the site values each run was analysed with among them.
+    const runRows = csvRecords(files["data/runs.csv"]);
+    for (const row of runRows) {
+      const runRow = await db.analysisRun.findUniqueOrThrow({ where: { id: row.runId ?? "" } });
+      expect(runRow.siteLatitudeDeg).not.toBeNull();
+      for (const field of RUNS_TABLE.fields) expect(readCell(field.type, row[field.name]), field.name).toEqual(stored(field.get(runRow)));
     }
 
     // Foreign keys hold inside the package.

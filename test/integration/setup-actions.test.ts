@@ -207,6 +207,45 @@ describe("Setup server actions (SQLite)", () => {
     const current = await database.db.analysisRun.findFirstOrThrow({ where: { flightId, isCurrent: true } });
     expect(current.reason).toBe("api test");
   });
+
+  test("correcting a site lists the flights it changes; the API selects and re-analyses a site's flights", async () => {
+    const site = await database.db.site.findUniqueOrThrow({ where: { id: ids.site.id } });
+    const same = { id: site.id, schoolId: site.schoolId, name: site.name, latitudeDeg: site.latitudeDeg, longitudeDeg: site.longitudeDeg, elevationM: site.elevationM, timeZone: site.timeZone };
+    // A new name changes no analysis; moving the site south of the equator changes the flight's season name.
+    expect(await actions.saveSite({ ...same, name: "Test Field West" })).toEqual({ ok: true, data: { id: site.id, affectedFlightCount: 0 } });
+    expect(await actions.saveSite({ ...same, name: "Test Field West", latitudeDeg: -site.latitudeDeg })).toEqual({ ok: true, data: { id: site.id, affectedFlightCount: 1 } });
+
+    const reprocess = await import("../../app/api/v1/setup/reprocess/route.ts");
+    const listed = await reprocess.GET(new Request(`http://local/api/v1/setup/reprocess?site=${site.id}`));
+    expect(listed.status).toBe(200);
+    const body = (await listed.json()) as { selection: unknown; flights: Array<{ id: string }> };
+    expect(body.selection).toEqual({ siteId: site.id });
+    expect(body.flights.map((f) => f.id)).toEqual([flightId]);
+
+    const sites = await import("../../app/api/v1/setup/sites/[id]/route.ts");
+    const put = await sites.PUT(
+      new Request(`http://local/api/v1/setup/sites/${site.id}`, { method: "PUT", headers: { "content-type": "application/json" }, body: JSON.stringify({ name: "Test Field West", latitudeDeg: -site.latitudeDeg, longitudeDeg: site.longitudeDeg, elevationM: site.elevationM + 10, timeZone: site.timeZone }) }),
+      { params: Promise.resolve({ id: site.id }) },
+    );
+    expect(put.status).toBe(200);
+    expect(await put.json()).toMatchObject({ affectedFlightIds: [flightId], reprocess: { siteId: site.id } });
+
+    const response = await reprocess.POST(new Request("http://local/api/v1/setup/reprocess", {
+      method: "POST", headers: { "content-type": "application/json" },
+      body: JSON.stringify({ selection: { siteId: site.id }, reason: "site corrected via api" }),
+    }));
+    const lines = (await response.text()).trim().split("\n").map((line) => JSON.parse(line) as { type: string; reprocessed?: number; outcome?: { flightId: string; status: string; change?: { siteChanged: boolean } } });
+    expect(lines.map((l) => l.type)).toEqual(["start", "progress", "summary"]);
+    expect(lines[1]?.outcome).toMatchObject({ flightId, status: "reprocessed", change: { siteChanged: true } });
+    const summary = await database.db.flightSummary.findFirstOrThrow({ where: { flightId, isCurrent: true } });
+    // July launch at 48.1° S: meteorological JJA, winter in the southern hemisphere [P]
+    expect(summary).toMatchObject({ season: "JJA", seasonName: "winter", latitudeDeg: -site.latitudeDeg });
+    expect(await database.db.analysisRun.findFirstOrThrow({ where: { flightId, isCurrent: true } })).toMatchObject({ siteLatitudeDeg: -site.latitudeDeg, siteElevationM: site.elevationM + 10, reason: "site corrected via api" });
+
+    const history = await pages.getRunHistory({ kind: "local" }, flightId);
+    expect(history?.runs[0]?.change).toMatchObject({ siteChanged: true, calibrationChanged: false, layoutChanged: false });
+    expect(history?.runs[1]?.change?.siteChanged).toBe(false);
+  });
 });
 
 describe("plain words for what changed", () => {
@@ -214,6 +253,7 @@ describe("plain words for what changed", () => {
     { change: { tropopauseAltitudeDeltaM: 120.4, troposphericLapseRateDeltaKPerKm: -0.3, surfaceTemperatureDeltaK: null }, words: ["tropopause moved by +120 m", "lapse rate by −0.30 K/km"] },
     { change: { tropopauseAltitudeDeltaM: -0.2, troposphericLapseRateDeltaKPerKm: 0.001, surfaceTemperatureDeltaK: -1.234 }, words: ["tropopause moved by 0 m", "lapse rate by 0.00 K/km", "surface temperature by −1.23 K"] },
     { change: { tropopauseAltitudeDeltaM: null, troposphericLapseRateDeltaKPerKm: null, surfaceTemperatureDeltaK: null, tropopauseFoundChanged: true, calibrationChanged: true, layoutChanged: true, changedParameters: ["binSizeM"], analysisVersionChanged: { from: "1.0.0", to: "1.1.0" } }, words: ["tropopause found in one run only", "calibration changed", "logger layout changed", "parameters changed (binSizeM)", "analysis version 1.0.0 → 1.1.0"] },
+    { change: { tropopauseAltitudeDeltaM: null, troposphericLapseRateDeltaKPerKm: null, surfaceTemperatureDeltaK: null, siteChanged: true }, words: ["site corrected"] },
   ])("$words", async ({ change, words }) => {
     const { describeChange } = await import("../../app/_components/setup/change-words.ts");
     // [D] signs and rounding as shown to users: whole metres, hundredths of K/km and K, no "−0"

@@ -8,6 +8,7 @@ export interface ChangeLike {
   parametersChanged?: boolean;
   changedParameters?: string[];
   layoutChanged?: boolean;
+  siteChanged?: boolean;
   tropopauseFoundChanged?: boolean;
 }
 
@@ -25,6 +26,7 @@ export function describeChange(change: ChangeLike): string[] {
   if (change.surfaceTemperatureDeltaK !== null) words.push(`surface temperature by ${signed(change.surfaceTemperatureDeltaK, 2)} K`);
   if (change.calibrationChanged) words.push("calibration changed");
   if (change.layoutChanged) words.push("logger layout changed");
+  if (change.siteChanged) words.push("site corrected");
   if (change.changedParameters && change.changedParameters.length > 0) words.push(`parameters changed (${change.changedParameters.join(", ")})`);
   else if (change.parametersChanged) words.push("parameters changed");
   const version = change.analysisVersionChanged;

@@ -5,7 +5,7 @@ import { useRouter } from "next/navigation";
 import { reprocessOneFlight } from "@/app/setup/actions";
 import { describeChange } from "./change-words";
 
-/** "Re-analyse this flight": a new run from the stored raw bytes with today's calibration, layout and parameters. */
+/** "Re-analyse this flight": a new run from the stored raw bytes with today's calibration, layout, parameters and site. */
 export function ReanalyseButton({ flightId }: { flightId: string }) {
   const router = useRouter();
   const [busy, setBusy] = useState(false);
@@ -19,7 +19,7 @@ export function ReanalyseButton({ flightId }: { flightId: string }) {
     if (!result.ok) { setMessage({ text: result.message, kind: "error" }); return; }
     const outcome = result.data;
     if (outcome.status === "failed") setMessage({ text: `Re-analysis failed; the flight stays on its previous run. ${outcome.message ?? ""}`, kind: "error" });
-    else if (outcome.status === "up-to-date") setMessage({ text: "Already up to date: the current run used today's calibration, layout, parameters and analysis version.", kind: "info" });
+    else if (outcome.status === "up-to-date") setMessage({ text: "Already up to date: the current run used today's calibration, layout, parameters, site and analysis version.", kind: "info" });
     else {
       const words = outcome.change ? describeChange(outcome.change) : [];
       setMessage({ text: `Re-analysed as a new run${words.length ? `: ${words.join("; ")}` : ""}.`, kind: "ok" });

@@ -15,7 +15,10 @@ export interface SiteFormValues {
   timeZone: string;
 }
 
-/** Create or correct a launch site; latitude, longitude, elevation and IANA zone are checked on the server. */
+/**
+ * Create or correct a launch site; latitude, longitude, elevation and IANA zone are checked on the server.
+ * A correction that changes what flights were analysed with goes on to the re-analysis page.
+ */
 export function SiteForm({ initial, schools }: { initial: SiteFormValues; schools: Array<{ id: string; name: string }> }) {
   const uid = useId();
   const router = useRouter();
@@ -38,7 +41,9 @@ export function SiteForm({ initial, schools }: { initial: SiteFormValues; school
     setBusy(false);
     if (!result.ok) { setErrors(result.fieldErrors); setMessage(result.message); return; }
     setErrors({}); setMessage(null);
-    if (initial.id) { setSaved("Site saved."); router.refresh(); }
+    if (initial.id && result.data.affectedFlightCount > 0) {
+      router.push(`/setup/reprocess?site=${encodeURIComponent(result.data.id)}&reason=${encodeURIComponent(`site ${v.name.trim()} corrected`)}`);
+    } else if (initial.id) { setSaved("Site saved. No flight was analysed with other values, so none needs re-analysis."); router.refresh(); }
     else router.push(`/setup/sites/${result.data.id}?saved=1`);
   }
 

@@ -182,6 +182,15 @@ export default async function FlightPage({ params }: { params: Params }) {
             <div><dt>Run created</dt><dd>{formatUtc(run.createdAt)}</dd></div>
             <div><dt>Reason</dt><dd>{run.reason}</dd></div>
             <div><dt>Logger layout</dt><dd>{flight.layout.name}</dd></div>
+            <div>
+              <dt>Site as analysed</dt>
+              <dd>
+                {run.site.latitudeDeg === null ? "not recorded" : `${run.site.latitudeDeg}°, ${run.site.longitudeDeg}°, ${run.site.elevationM} m, ${run.site.timeZone}`}
+                {run.siteCorrectedSince && (
+                  <span className="muted small"> (the site has been corrected since; re-analyse to apply it)</span>
+                )}
+              </dd>
+            </div>
           </dl>
           <p><strong>Calibration:</strong> {describeCalibration(run.calibrationSpec)}{run.calibrationId ? <span className="muted small"> (calibration {run.calibrationId})</span> : <span className="muted small"> (implied by the layout)</span>}</p>
           <details>

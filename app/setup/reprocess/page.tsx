@@ -16,6 +16,8 @@ function selectionOf(params: Awaited<SearchParams>): { selection: ReprocessSelec
   if (calibrationId) return { selection: { calibrationId }, label: "flights whose analysis uses this calibration (its sensor's flights in its validity period, and flights whose current run used it)" };
   const layoutId = pickId(params.layout);
   if (layoutId) return { selection: { layoutId }, label: "flights read with this logger layout" };
+  const siteId = pickId(params.site);
+  if (siteId) return { selection: { siteId }, label: "flights launched from this site" };
   const flights = [params.flight].flat().filter((v): v is string => typeof v === "string" && v.length > 0 && v.length <= 64);
   if (flights.length) return { selection: { flightIds: flights }, label: "the chosen flights" };
   if (params.all === "1") return { selection: { all: true }, label: "every flight in the archive" };
@@ -34,7 +36,7 @@ export default async function ReprocessPage({ searchParams }: { searchParams: Se
     return (
       <>
         <h1>Re-analysis</h1>
-        <p>Choose what to re-analyse: <Link href="/setup/reprocess?all=1">every flight</Link>, or open a calibration or a logger layout and follow its “Flights using it” link.</p>
+        <p>Choose what to re-analyse: <Link href="/setup/reprocess?all=1">every flight</Link>, or open a calibration, a logger layout or a site and follow its “Flights using it” link.</p>
       </>
     );
   }
@@ -44,12 +46,12 @@ export default async function ReprocessPage({ searchParams }: { searchParams: Se
     <>
       <h1>Re-analysis</h1>
       <p className="lead">
-        Affected: {chosen.label}. Re-analysis re-runs the pipeline from each flight&apos;s stored raw file with today&apos;s calibration, logger layout and
-        analysis parameters, as a new run; the previous run is kept. Flights whose current run already used exactly these inputs are reported as up to date.
+        Affected: {chosen.label}. Re-analysis re-runs the pipeline from each flight&apos;s stored raw file with today&apos;s calibration, logger layout,
+        analysis parameters and site, as a new run; the previous run is kept. Flights whose current run already used exactly these inputs are reported as up to date.
         Stopping is safe: run it again to resume.
       </p>
       <ReprocessPanel flights={flights} defaultReason={reasonParam || "re-analysis from Setup"} />
-      <p className="small muted">The command line does the same: <code>npm run lapsebank -- reprocess --all | --flight ID | --calibration ID | --layout ID</code></p>
+      <p className="small muted">The command line does the same: <code>npm run lapsebank -- reprocess --all | --flight ID | --calibration ID | --layout ID | --site ID</code></p>
     </>
   );
 }

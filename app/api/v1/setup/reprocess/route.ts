@@ -17,6 +17,7 @@ const selectionSchema = z.union([
   z.object({ flightIds: z.array(id).min(1).max(10_000) }),
   z.object({ calibrationId: id }),
   z.object({ layoutId: id }),
+  z.object({ siteId: id }),
 ]);
 const reprocessBodySchema = z.object({ selection: selectionSchema, reason: z.string().trim().min(1).max(200).default("re-analysis via API"), force: z.boolean().default(false) });
 
@@ -25,19 +26,21 @@ function selectionFromQuery(params: URLSearchParams): ReprocessSelection | null 
   if (calibrationId) return { calibrationId };
   const layoutId = params.get("layout");
   if (layoutId) return { layoutId };
+  const siteId = params.get("site");
+  if (siteId) return { siteId };
   const flightIds = params.getAll("flight").filter(Boolean);
   if (flightIds.length) return { flightIds };
   if (params.get("all") === "1") return { all: true };
   return null;
 }
 
-/** GET /api/v1/setup/reprocess?calibration=ID | layout=ID | flight=ID… | all=1: the flights such a re-analysis covers. */
+/** GET /api/v1/setup/reprocess?calibration=ID | layout=ID | site=ID | flight=ID… | all=1: the flights such a re-analysis covers. */
 export const GET = withErrors(async (request: Request) => {
   const refused = await refuseVisitors();
   if (refused) return refused;
   const raw = selectionFromQuery(new URL(request.url).searchParams);
   const parsed = selectionSchema.safeParse(raw);
-  if (!raw || !parsed.success) return jsonError(400, "invalid-request", "Give one of ?calibration=ID, ?layout=ID, ?flight=ID (repeatable) or ?all=1");
+  if (!raw || !parsed.success) return jsonError(400, "invalid-request", "Give one of ?calibration=ID, ?layout=ID, ?site=ID, ?flight=ID (repeatable) or ?all=1");
   const ids = await selectFlights(getDb(), parsed.data);
   return jsonOk({ selection: parsed.data, flights: await listFlightsForReprocess(await getViewer(), ids) });
 });

@@ -1,4 +1,5 @@
 import { getDb } from "@/lib/db";
+import { flightsAnalysedWithOtherSite } from "@/lib/ingest";
 import { siteUpdateSchema, updateSite } from "@/lib/ingest/setup-more";
 import { getSetupSite } from "@/lib/query/setup-pages";
 import { jsonOk, notFoundError, withErrors } from "../../../_lib/respond";
@@ -16,7 +17,10 @@ export const GET = withErrors(async (_request: Request, { params }: Context) => 
   return site ? jsonOk({ site }) : notFoundError("Site");
 });
 
-/** PUT /api/v1/setup/sites/ID {name, latitudeDeg, longitudeDeg, elevationM, timeZone} */
+/**
+ * PUT /api/v1/setup/sites/ID {name, latitudeDeg, longitudeDeg, elevationM, timeZone}: the answer lists the
+ * site's flights whose current run used other site values, to re-analyse (selection `{siteId}`).
+ */
 export const PUT = withErrors(async (request: Request, { params }: Context) => {
   const existing = await getSetupSite((await params).id);
   if (!existing) return notFoundError("Site");
@@ -24,8 +28,10 @@ export const PUT = withErrors(async (request: Request, { params }: Context) => {
   if (refused) return refused;
   const body = await readJson(request, siteUpdateSchema);
   if ("response" in body) return body.response;
+  const db = getDb();
   try {
-    return jsonOk({ site: await updateSite(getDb(), existing.id, body.data, await currentActor("api")) });
+    const site = await updateSite(db, existing.id, body.data, await currentActor("api"));
+    return jsonOk({ site, affectedFlightIds: await flightsAnalysedWithOtherSite(db, site.id), reprocess: { siteId: site.id } });
   } catch (error) {
     return setupFailure(error);
   }
