@@ -2,7 +2,7 @@
  * Layer statistics from binned profile levels: surface-based and elevated inversions, the
  * tropospheric lapse rate, the stratospheric gradient and fixed or caller-chosen altitude bands.
  */
-import { bandLevelFigures, bandRangeMsl, decideBandCoverage, levelsInBand, type BandSpec, type HeightReference } from "./band-coverage";
+import { bandLevelFigures, bandRangeMsl, decideBandCoverage, levelsInBand, type BandCoverageReason, type BandSpec, type HeightReference } from "./band-coverage";
 import { DRY_AIR_SPECIFIC_HEAT_J_PER_KG_K, STANDARD_GRAVITY_M_PER_S2 } from "./constants";
 import { fitOrdinaryLeastSquares, theilSenSlope } from "./regression";
 import { classifyStability, moistAdiabaticLapseRateKPerKm } from "./stability";
@@ -145,7 +145,10 @@ export function detectInversions(points: readonly ProfilePoint[], mergeGapM: num
   return layers;
 }
 
-export type BandLapseRateResult = { layer: LayerStat; reason: null } | { layer: null; reason: string };
+/** A fitted band, or why not: `code` names the rule that failed (band-coverage.ts), `reason` says it in words. */
+export type BandLapseRateResult =
+  | { layer: LayerStat; reason: null; code: null }
+  | { layer: null; reason: string; code: BandCoverageReason | "flat" | "invalid" };
 
 /**
  * Lapse rate (OLS, K/km) over a band of one phase's levels. The band's limits are metres above
@@ -164,32 +167,32 @@ export function computeBandLapseRate(
   options: { reference?: HeightReference; groundElevationM?: number | null; phase?: Phase; kind?: LayerKind } = {},
 ): BandLapseRateResult {
   if (!Number.isFinite(baseM) || !Number.isFinite(topM) || topM <= baseM) {
-    return { layer: null, reason: "the band needs finite limits with top above base" };
+    return { layer: null, reason: "the band needs finite limits with top above base", code: "invalid" };
   }
   const band: BandSpec = { baseM, topM, reference: options.reference ?? "msl" };
   const groundElevationM = band.reference === "agl" ? (options.groundElevationM ?? null) : null;
   const range = bandRangeMsl(band, groundElevationM);
   const words = `${baseM}–${topM} m ${band.reference.toUpperCase()}`;
-  if (range === null) return { layer: null, reason: `the ground elevation is unknown, so the band ${words} has no height above sea level` };
-  const inBand = levelsInBand(levels, range);
+  const inBand = range === null ? [] : levelsInBand(levels, range);
   const figures = bandLevelFigures(inBand);
+  const code = decideBandCoverage(figures, range);
   const lowest = inBand[0];
-  switch (decideBandCoverage(figures, range)) {
-    case null:
-      break;
-    case "few-levels":
-      return { layer: null, reason: `fewer than 3 levels between ${Math.round(range.baseM)} m and ${Math.round(range.topM)} m (band ${words})` };
-    case "low-end":
-      return { layer: null, reason: `the profile does not reach down to ${Math.round(range.baseM)} m (band ${words}; lowest level ${Math.round(figures.lowestM ?? Number.NaN)} m)` };
-    case "high-end":
-      return { layer: null, reason: `the profile does not reach up to ${Math.round(range.topM)} m (band ${words}; highest level ${Math.round(figures.highestM ?? Number.NaN)} m)` };
-    case "gap":
-    case "no-ground":
-      return { layer: null, reason: `a data gap of more than two bins lies inside the band ${words}` };
+  if (code === null && lowest && range !== null) {
+    const layer = buildLayerStat(options.kind ?? "band", options.phase ?? lowest.phase, range.baseM, range.topM, inBand, null);
+    return layer
+      ? { layer: { ...layer, band: { ...band, groundElevationM } }, reason: null, code: null }
+      : { layer: null, reason: `the levels in the band ${words} do not determine a lapse rate`, code: "flat" };
   }
-  if (!lowest) return { layer: null, reason: `no levels in the band ${words}` };
-  const layer = buildLayerStat(options.kind ?? "band", options.phase ?? lowest.phase, range.baseM, range.topM, inBand, null);
-  return layer ? { layer: { ...layer, band: { ...band, groundElevationM } }, reason: null } : { layer: null, reason: "the levels do not determine a lapse rate" };
+  const m = (v: number | null | undefined) => Math.round(v ?? Number.NaN);
+  const reasons: Record<BandCoverageReason, string> = {
+    "no-ground": `the ground elevation is unknown, so the band ${words} has no height above sea level`,
+    "few-levels": `fewer than 3 levels between ${m(range?.baseM)} m and ${m(range?.topM)} m (band ${words})`,
+    "low-end": `the profile does not reach down to ${m(range?.baseM)} m (band ${words}; lowest level ${m(figures.lowestM)} m)`,
+    "high-end": `the profile does not reach up to ${m(range?.topM)} m (band ${words}; highest level ${m(figures.highestM)} m)`,
+    gap: `a data gap of more than two bins lies inside the band ${words}`,
+  };
+  const failed = code ?? "few-levels";
+  return { layer: null, reason: reasons[failed], code: failed };
 }
 
 export interface PhaseLayers {
