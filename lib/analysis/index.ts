@@ -7,6 +7,7 @@ import { cleanSamples, type CleanSeries } from "./clean";
 import { binProfile } from "./binning";
 import { correctSensorLag } from "./lag";
 import { computePhaseLayers, type ProfilePoint } from "./layers";
+import { HEIGHT_REFERENCES } from "./band-coverage";
 import { detectFlightSegments } from "./segment";
 import { findTropopauses } from "./tropopause";
 import {
@@ -42,6 +43,7 @@ export * from "./lag";
 export * from "./binning";
 export * from "./tropopause";
 export * from "./layers";
+export * from "./band-coverage";
 export { cleanSamples, TEMPERATURE_RANGE_K, ALTITUDE_RANGE_M } from "./clean";
 
 /** Ascent samples within this height above launch give the surface temperature, m [P]. */
@@ -71,9 +73,11 @@ export function resolveAnalysisParameters(partial: Partial<AnalysisParameters> |
   };
   const lag = p.lagCorrection ?? d.lagCorrection;
   const timeConstantS = pick("lagCorrection", lag.timeConstantS, d.lagCorrection.timeConstantS, (v) => v >= 0 && v <= 600);
-  const bands = (p.fixedBandsM ?? d.fixedBandsM).filter((b) => Number.isFinite(b.baseM) && Number.isFinite(b.topM) && b.topM > b.baseM);
+  const bands = (p.fixedBandsM ?? d.fixedBandsM).filter(
+    (b) => Number.isFinite(b.baseM) && Number.isFinite(b.topM) && b.topM > b.baseM && (HEIGHT_REFERENCES as readonly string[]).includes(b.reference),
+  );
   if (p.fixedBandsM && bands.length !== p.fixedBandsM.length) {
-    warnings.push({ code: "invalid-parameter", message: "Some fixed bands were invalid (top must be above base) and were ignored." });
+    warnings.push({ code: "invalid-parameter", message: "Some fixed bands were invalid (top must be above base, reference agl or msl) and were ignored." });
   }
   return {
     parameters: {
@@ -86,14 +90,15 @@ export function resolveAnalysisParameters(partial: Partial<AnalysisParameters> |
       maxVerticalSpeedMPerS: pick("maxVerticalSpeedMPerS", p.maxVerticalSpeedMPerS, d.maxVerticalSpeedMPerS, (v) => v > 0 && v <= 1000),
       inversionMergeGapM: pick("inversionMergeGapM", p.inversionMergeGapM, d.inversionMergeGapM, (v) => v >= 0 && v <= 10000),
       inversionMinStrengthK: pick("inversionMinStrengthK", p.inversionMinStrengthK, d.inversionMinStrengthK, (v) => v >= 0 && v <= 100),
-      fixedBandsM: bands.map((b) => ({ baseM: b.baseM, topM: b.topM })),
+      fixedBandsM: bands.map((b) => ({ baseM: b.baseM, topM: b.topM, reference: b.reference })),
     },
     warnings,
   };
 }
 
-function emptySummary(): FlightSummaryValues {
+function emptySummary(groundElevationM: number | null = null): FlightSummaryValues {
   return {
+    groundElevationM,
     launchElapsedS: null, burstElapsedS: null, landingElapsedS: null, launchAltitudeM: null, burstAltitudeM: null,
     maxAltitudeM: null, minAltitudeM: null, surfaceTemperatureK: null, troposphericLapseRateKPerKm: null, troposphericLapseRateStdErrKPerKm: null,
     tropopauseAltitudeM: null, tropopauseTemperatureK: null, tropopausePressureHpa: null, secondTropopauseAltitudeM: null,
@@ -158,16 +163,18 @@ function distrustTropopause(result: TropopauseResult, faults: readonly string[])
 function analyse(input: FlightAnalysisInput): FlightAnalysis {
   const { parameters, warnings: parameterWarnings } = resolveAnalysisParameters(input.parameters);
   const qc: QcReport = { removed: emptyRemoved(), timeOrder: "monotonic", flags: [], warnings: [...parameterWarnings] };
+  // AGL heights (fixed bands) are measured from the site's elevation, the ground the run records.
+  const groundElevationM = nullable(input.site.elevationM);
   const issues = validateCalibration(input.calibration);
   if (issues.length > 0) {
     qc.flags.push("invalid-calibration");
     for (const issue of issues) qc.warnings.push({ code: "invalid-calibration", message: `Calibration ${issue.field}: ${issue.message}.` });
-    return failed(parameters, qc);
+    return failed(parameters, qc, emptySummary(groundElevationM));
   }
   if (input.samples.length === 0) {
     qc.flags.push("empty-input");
     qc.warnings.push({ code: "empty-input", message: "The file contains no data rows." });
-    return failed(parameters, qc);
+    return failed(parameters, qc, emptySummary(groundElevationM));
   }
 
   const cleaned = cleanSamples(input.samples, input.calibration, input.site, parameters);
@@ -176,7 +183,7 @@ function analyse(input: FlightAnalysisInput): FlightAnalysis {
   qc.flags.push(...cleaned.flags);
   qc.warnings.push(...cleaned.warnings);
   const series = cleaned.series;
-  const summary = emptySummary();
+  const summary = emptySummary(groundElevationM);
   summary.hasPressure = cleaned.hasPressure;
   summary.hasHumidity = cleaned.hasHumidity;
 
@@ -239,6 +246,7 @@ function analyse(input: FlightAnalysisInput): FlightAnalysis {
     surface: surfacePoint(seriesView, launchIndex, burstIndex + 1, launchAltitudeM),
     tropopause: tropopause.first,
     fixedBandsM: parameters.fixedBandsM,
+    groundElevationM,
     binSizeM: binM,
     inversionMergeGapM: parameters.inversionMergeGapM,
     inversionMinStrengthK: parameters.inversionMinStrengthK,
@@ -254,6 +262,7 @@ function analyse(input: FlightAnalysisInput): FlightAnalysis {
       surface: landingAltitudeM === null ? null : surfacePoint(seriesView, burstIndex + 1, endIndex + 1, landingAltitudeM),
       tropopause: descentTropopause,
       fixedBandsM: parameters.fixedBandsM,
+      groundElevationM,
       binSizeM: binM,
       inversionMergeGapM: parameters.inversionMergeGapM,
       inversionMinStrengthK: parameters.inversionMinStrengthK,

@@ -2,6 +2,7 @@
  * Layer statistics from binned profile levels: surface-based and elevated inversions, the
  * tropospheric lapse rate, the stratospheric gradient and fixed or caller-chosen altitude bands.
  */
+import { bandLevelFigures, bandRangeMsl, decideBandCoverage, levelsInBand, type BandCoverageReason, type BandSpec, type HeightReference } from "./band-coverage";
 import { DRY_AIR_SPECIFIC_HEAT_J_PER_KG_K, STANDARD_GRAVITY_M_PER_S2 } from "./constants";
 import { fitOrdinaryLeastSquares, theilSenSlope } from "./regression";
 import { classifyStability, moistAdiabaticLapseRateKPerKm } from "./stability";
@@ -42,8 +43,12 @@ export function buildLayerStat(
   let sumZ = 0;
   let sumP = 0;
   let allPressure = true;
+  let fittedBaseM = Infinity;
+  let fittedTopM = -Infinity;
   for (let i = 0; i < n; i++) {
     const p = points[i] as ProfilePoint;
+    if (p.altitudeM < fittedBaseM) fittedBaseM = p.altitudeM;
+    if (p.altitudeM > fittedTopM) fittedTopM = p.altitudeM;
     xKm[i] = p.altitudeM / 1000;
     y[i] = p.temperatureK;
     sumT += p.temperatureK;
@@ -67,6 +72,9 @@ export function buildLayerStat(
     phase,
     baseM,
     topM,
+    fittedBaseM,
+    fittedTopM,
+    band: null,
     lapseRateKPerKm: withoutNegativeZero(lapseRateKPerKm),
     lapseRateStdErrKPerKm: fit.slopeStdErr,
     rSquared: fit.rSquared,
@@ -137,48 +145,54 @@ export function detectInversions(points: readonly ProfilePoint[], mergeGapM: num
   return layers;
 }
 
-export type BandLapseRateResult = { layer: LayerStat; reason: null } | { layer: null; reason: string };
-
-function inferBinSizeM(levels: readonly ProfileLevel[]): number {
-  const widths = levels.map((l) => l.topM - l.baseM).filter((w) => Number.isFinite(w) && w > 0).sort((a, b) => a - b);
-  return widths.length > 0 ? (widths[widths.length >> 1] as number) : 100;
-}
+/** A fitted band, or why not: `code` names the rule that failed (band-coverage.ts), `reason` says it in words. */
+export type BandLapseRateResult =
+  | { layer: LayerStat; reason: null; code: null }
+  | { layer: null; reason: string; code: BandCoverageReason | "flat" | "invalid" };
 
 /**
- * Lapse rate (OLS, K/km) over a caller-chosen band baseM–topM (m above mean sea level) of one
- * phase's levels. When groundM is given and the band starts below it, the fit starts at the
- * ground; baseM/topM in the result stay as requested so bands group across flights. The levels
- * must reach within one bin of both ends, have no gap of more than two empty bins and number at
- * least 3; otherwise layer is null and reason says why.
+ * Lapse rate (OLS, K/km) over a band of one phase's levels. The band's limits are metres above
+ * its reference: `reference: "msl"` (the default) takes them as they are, `"agl"` adds
+ * groundElevationM (the site's elevation), so 0–2000 m AGL at a 1,600 m site is fitted from the
+ * levels between 1,600 and 3,600 m. Whether the levels cover the band is decided by
+ * decideBandCoverage (band-coverage.ts), the rule the Climatology query uses too; whether they
+ * determine a slope by fitOrdinaryLeastSquares. The layer's baseM/topM are the band's MSL limits,
+ * fittedBaseM/fittedTopM the lowest and highest level used, and `band` the band as asked.
+ * When the band does not count, layer is null and reason says why.
  */
 export function computeBandLapseRate(
   levels: readonly ProfileLevel[],
   baseM: number,
   topM: number,
-  options: { groundM?: number; phase?: Phase; kind?: LayerKind } = {},
+  options: { reference?: HeightReference; groundElevationM?: number | null; phase?: Phase; kind?: LayerKind } = {},
 ): BandLapseRateResult {
   if (!Number.isFinite(baseM) || !Number.isFinite(topM) || topM <= baseM) {
-    return { layer: null, reason: "the band needs finite limits with top above base" };
+    return { layer: null, reason: "the band needs finite limits with top above base", code: "invalid" };
   }
-  const binM = inferBinSizeM(levels);
-  const effectiveBaseM = options.groundM !== undefined && Number.isFinite(options.groundM) ? Math.max(baseM, options.groundM) : baseM;
-  if (topM - effectiveBaseM < binM) return { layer: null, reason: "the band lies below the ground or is thinner than one bin" };
-  const inBand = levels
-    .filter((l) => l.altitudeM >= effectiveBaseM && l.altitudeM <= topM && Number.isFinite(l.temperatureK))
-    .slice()
-    .sort((a, b) => a.altitudeM - b.altitudeM);
+  const band: BandSpec = { baseM, topM, reference: options.reference ?? "msl" };
+  const groundElevationM = band.reference === "agl" ? (options.groundElevationM ?? null) : null;
+  const range = bandRangeMsl(band, groundElevationM);
+  const words = `${baseM}–${topM} m ${band.reference.toUpperCase()}`;
+  const inBand = range === null ? [] : levelsInBand(levels, range);
+  const figures = bandLevelFigures(inBand);
+  const code = decideBandCoverage(figures, range);
   const lowest = inBand[0];
-  const highest = inBand[inBand.length - 1];
-  if (!lowest || !highest || inBand.length < 3) return { layer: null, reason: `fewer than 3 levels between ${baseM} m and ${topM} m` };
-  if (lowest.altitudeM - effectiveBaseM > binM) return { layer: null, reason: `the profile does not reach down to ${Math.round(effectiveBaseM)} m` };
-  if (topM - highest.altitudeM > binM) return { layer: null, reason: `the profile does not reach up to ${topM} m` };
-  for (let i = 1; i < inBand.length; i++) {
-    if ((inBand[i] as ProfileLevel).altitudeM - (inBand[i - 1] as ProfileLevel).altitudeM > 3 * binM) {
-      return { layer: null, reason: "a data gap of more than two bins lies inside the band" };
-    }
+  if (code === null && lowest && range !== null) {
+    const layer = buildLayerStat(options.kind ?? "band", options.phase ?? lowest.phase, range.baseM, range.topM, inBand, null);
+    return layer
+      ? { layer: { ...layer, band: { ...band, groundElevationM } }, reason: null, code: null }
+      : { layer: null, reason: `the levels in the band ${words} do not determine a lapse rate`, code: "flat" };
   }
-  const layer = buildLayerStat(options.kind ?? "band", options.phase ?? lowest.phase, baseM, topM, inBand, null);
-  return layer ? { layer, reason: null } : { layer: null, reason: "the levels do not determine a lapse rate" };
+  const m = (v: number | null | undefined) => Math.round(v ?? Number.NaN);
+  const reasons: Record<BandCoverageReason, string> = {
+    "no-ground": `the ground elevation is unknown, so the band ${words} has no height above sea level`,
+    "few-levels": `fewer than 3 levels between ${m(range?.baseM)} m and ${m(range?.topM)} m (band ${words})`,
+    "low-end": `the profile does not reach down to ${m(range?.baseM)} m (band ${words}; lowest level ${m(figures.lowestM)} m)`,
+    "high-end": `the profile does not reach up to ${m(range?.topM)} m (band ${words}; highest level ${m(figures.highestM)} m)`,
+    gap: `a data gap of more than two bins lies inside the band ${words}`,
+  };
+  const failed = code ?? "few-levels";
+  return { layer: null, reason: reasons[failed], code: failed };
 }
 
 export interface PhaseLayers {
@@ -199,7 +213,9 @@ export function computePhaseLayers(args: {
   levels: readonly ProfileLevel[];
   surface: ProfilePoint | null;
   tropopause: TropopauseResult;
-  fixedBandsM: ReadonlyArray<{ baseM: number; topM: number }>;
+  fixedBandsM: readonly BandSpec[];
+  /** The site's elevation, m above mean sea level: the ground of AGL bands (null when unknown). */
+  groundElevationM: number | null;
   binSizeM: number;
   inversionMergeGapM: number;
   inversionMinStrengthK: number;
@@ -273,7 +289,7 @@ export function computePhaseLayers(args: {
   }
 
   for (const band of args.fixedBandsM) {
-    const r = computeBandLapseRate(levels, band.baseM, band.topM, { groundM, phase });
+    const r = computeBandLapseRate(levels, band.baseM, band.topM, { reference: band.reference, groundElevationM: args.groundElevationM, phase });
     if (r.layer) layers.push(r.layer);
   }
   return { layers, surfaceInversion, warnings };

@@ -6,6 +6,8 @@
 /** Bump whenever a change can alter any stored analysis result. */
 export const ANALYSIS_VERSION = "1.1.0";
 
+import type { BandSpec } from "./band-coverage";
+
 // --- input ---
 
 /** One parsed logger row; units already normalised by ingest. */
@@ -94,8 +96,11 @@ export interface AnalysisParameters {
   inversionMergeGapM: number;
   /** Inversions weaker than this (T(top) − T(base)) are ignored as noise, K. */
   inversionMinStrengthK: number;
-  /** Fixed altitude bands (above mean sea level) reported for every flight, m. */
-  fixedBandsM: Array<{ baseM: number; topM: number }>;
+  /**
+   * Fixed altitude bands reported for every flight, m above their reference: above ground level
+   * (the site's elevation) or above mean sea level.
+   */
+  fixedBandsM: BandSpec[];
 }
 
 export const DEFAULT_ANALYSIS_PARAMETERS: AnalysisParameters = {
@@ -108,10 +113,12 @@ export const DEFAULT_ANALYSIS_PARAMETERS: AnalysisParameters = {
   maxVerticalSpeedMPerS: 60,
   inversionMergeGapM: 100,
   inversionMinStrengthK: 0.3,
+  // The lowest band is the boundary layer, measured from the ground; the ones above compare the free
+  // troposphere across sites at the same heights above sea level.
   fixedBandsM: [
-    { baseM: 0, topM: 2000 },
-    { baseM: 2000, topM: 5000 },
-    { baseM: 5000, topM: 10000 },
+    { baseM: 0, topM: 2000, reference: "agl" },
+    { baseM: 2000, topM: 5000, reference: "msl" },
+    { baseM: 5000, topM: 10000, reference: "msl" },
   ],
 };
 
@@ -152,11 +159,20 @@ export interface ProfileLevel {
 export type StabilityClass = "absolutely-stable" | "conditionally-unstable" | "absolutely-unstable";
 export type LayerKind = "surface-inversion" | "elevated-inversion" | "troposphere" | "stratosphere" | "band";
 
+/** A band layer's band as asked, with the ground its AGL limits were measured from (null for MSL). */
+export type LayerBand = BandSpec & { groundElevationM: number | null };
+
 export interface LayerStat {
   kind: LayerKind;
   phase: Phase;
+  /** Layer limits, m above mean sea level (for a band: its asked limits moved to MSL). */
   baseM: number;
   topM: number;
+  /** Lowest and highest point the fit used, m above mean sea level. */
+  fittedBaseM: number;
+  fittedTopM: number;
+  /** Band layers only: the band as asked; null for every other kind. */
+  band: LayerBand | null;
   /** −dT/dz by ordinary least squares over the layer's levels, K/km. */
   lapseRateKPerKm: number;
   lapseRateStdErrKPerKm: number | null;
@@ -204,6 +220,8 @@ export interface QcReport {
 }
 
 export interface FlightSummaryValues {
+  /** The ground AGL heights are measured from: the site's elevation given to the analysis, m above mean sea level. */
+  groundElevationM: number | null;
   launchElapsedS: number | null;
   burstElapsedS: number | null;
   landingElapsedS: number | null;

@@ -1,6 +1,7 @@
 import { z } from "zod";
 import type { AnalysisParameters, TemperatureCalibration } from "../analysis/types.ts";
 import { DEFAULT_ANALYSIS_PARAMETERS } from "../analysis/types.ts";
+import { HEIGHT_REFERENCES } from "../analysis/band-coverage.ts";
 import { launchTimeProblem } from "./time-bounds.ts";
 
 const finite = z.number().finite();
@@ -39,7 +40,18 @@ export const analysisParametersSchema = z.object({
   maxVerticalSpeedMPerS: z.number().min(1).max(500),
   inversionMergeGapM: z.number().min(0).max(2000),
   inversionMinStrengthK: z.number().min(0).max(20),
-  fixedBandsM: z.array(z.object({ baseM: z.number(), topM: z.number() }).refine((b) => b.topM > b.baseM, "Band top must be above its base")).max(20),
+  // A band without a reference is above mean sea level: what fixed bands meant before they named one.
+  fixedBandsM: z
+    .array(
+      z
+        .object({
+          baseM: z.number(),
+          topM: z.number(),
+          reference: z.enum(HEIGHT_REFERENCES, { error: "Band reference must be agl (above ground level) or msl (above mean sea level)" }).default("msl"),
+        })
+        .refine((b) => b.topM > b.baseM, "Band top must be above its base"),
+    )
+    .max(20),
 }) satisfies z.ZodType<AnalysisParameters>;
 
 export const DEFAULT_PARAMETERS: AnalysisParameters = DEFAULT_ANALYSIS_PARAMETERS;

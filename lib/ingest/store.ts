@@ -302,6 +302,9 @@ export async function writeAnalysisRun(
       theilSenLapseRateKPerKm: finiteOrNull(l.theilSenLapseRateKPerKm), levelCount: l.levelCount, strengthK: finiteOrNull(l.strengthK),
       meanTemperatureK: l.meanTemperatureK, meanPressureHpa: l.meanPressureHpa, pressureFromStandardAtmosphere: l.pressureFromStandardAtmosphere,
       dryAdiabaticLapseRateKPerKm: l.dryAdiabaticLapseRateKPerKm, moistAdiabaticLapseRateKPerKm: l.moistAdiabaticLapseRateKPerKm, stability: l.stability,
+      fittedBaseM: finiteOrNull(l.fittedBaseM), fittedTopM: finiteOrNull(l.fittedTopM),
+      bandReference: l.band?.reference ?? null, bandBaseM: finiteOrNull(l.band?.baseM), bandTopM: finiteOrNull(l.band?.topM),
+      groundElevationM: finiteOrNull(l.band?.groundElevationM),
     })),
   });
   const s = analysis.summary;
@@ -323,7 +326,7 @@ export async function writeAnalysisRun(
       secondTropopauseAltitudeM: finiteOrNull(s.secondTropopauseAltitudeM),
       hasSurfaceInversion: s.hasSurfaceInversion, surfaceInversionDepthM: finiteOrNull(s.surfaceInversionDepthM),
       surfaceInversionStrengthK: finiteOrNull(s.surfaceInversionStrengthK), stratosphericLapseRateKPerKm: finiteOrNull(s.stratosphericLapseRateKPerKm),
-      hasDescent: s.hasDescent, qcFlags: analysis.qc.flags.join(","), qcFlagged,
+      hasDescent: s.hasDescent, groundElevationM: finiteOrNull(s.groundElevationM), qcFlags: analysis.qc.flags.join(","), qcFlagged,
     },
   });
   return run.id;

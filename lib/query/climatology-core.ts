@@ -8,6 +8,19 @@ import { visibilitySql } from "../auth/visibility-sql.ts";
 import { describe } from "../stats/index.ts";
 import { runClaimCheck, type ClaimCheckResult } from "../stats/claims.ts";
 import { SEASON_CODES, SEASON_NAMES } from "../analysis/season.ts";
+import {
+  BAND_COVERAGE_REASON_WORDS,
+  bandLevelFigures,
+  bandRangeMsl,
+  decideBandCoverage,
+  levelsInBand,
+  type BandCoverageReason,
+  type BandLevel,
+  type BandRangeMsl,
+  type BandSpec,
+  type HeightReference,
+} from "../analysis/band-coverage.ts";
+import { fitOrdinaryLeastSquares } from "../analysis/regression.ts";
 import { andSql, forEngine, listSql, raw, sql, type SqlEngine, type SqlFragment } from "./climatology-sql.ts";
 import { monthAbbreviation, type ClimatologyMetric, type ClimatologyQuery, type MonthSelection } from "./climatology-params.ts";
 
@@ -99,7 +112,8 @@ export interface ExclusionCount {
 
 export interface ClimatologyResult {
   metric: MetricInfo;
-  band: { baseM: number; topM: number; phase: "ascent" | "descent" } | null;
+  /** The band as asked: limits in m above `reference` (agl: each flight's ground, msl: sea level). */
+  band: { baseM: number; topM: number; reference: HeightReference; phase: "ascent" | "descent" } | null;
   /** Flights that pass every filter (and fall in a claim group), with or without a metric value. */
   matchedFlightCount: number;
   groups: ClimatologyGroup[];
@@ -125,6 +139,7 @@ interface CandidateRow {
   hoursAfterSunrise: unknown;
   groupKey: unknown;
   value: unknown;
+  groundElevationM?: unknown;
   bandN?: unknown;
   bandSx?: unknown;
   bandSy?: unknown;
@@ -232,21 +247,37 @@ function groupKeySql(query: ClimatologyQuery, engine: SqlEngine): SqlFragment {
   }
 }
 
-function bandLimitsM(query: ClimatologyQuery): { baseM: number; topM: number } | null {
+function bandOf(query: ClimatologyQuery): BandSpec | null {
   if (query.metric !== "band-lapse-rate" || query.bandBaseKm === undefined || query.bandTopKm === undefined) return null;
-  return { baseM: query.bandBaseKm * 1000, topM: query.bandTopKm * 1000 };
+  return { baseM: query.bandBaseKm * 1000, topM: query.bandTopKm * 1000, reference: query.bandReference };
+}
+
+/** A number as a typed SQL value (PostgreSQL cannot type a bare parameter in a select list). */
+function realSql(engine: SqlEngine, value: number): SqlFragment {
+  return engine === "postgres" ? sql`CAST(${value} AS DOUBLE PRECISION)` : sql`CAST(${value} AS REAL)`;
+}
+
+/**
+ * Each candidate's band limits above mean sea level, the SQL twin of bandRangeMsl
+ * (lib/analysis/band-coverage.ts): AGL limits are moved up by the run's ground (FlightSummary.groundElevationM,
+ * the site's elevation the analysis used), MSL limits are kept. NULL for an AGL band without a ground.
+ */
+function bandRangeSql(band: BandSpec, engine: SqlEngine): { baseM: SqlFragment; topM: SqlFragment } {
+  if (band.reference === "msl") return { baseM: realSql(engine, band.baseM), topM: realSql(engine, band.topM) };
+  return { baseM: sql`(s."groundElevationM" + ${realSql(engine, band.baseM)})`, topM: sql`(s."groundElevationM" + ${realSql(engine, band.topM)})` };
 }
 
 /**
  * The candidate flights with their group key and metric value. For the band lapse rate, the
  * least-squares sums (n, Σx, Σy, Σxy, Σx², with x the altitude in km from the band middle) and
  * the coverage figures of the chosen phase's levels inside the band are aggregated per run in SQL.
- * Gaps are checked separately (bandGaps) for the few runs whose in-band bins are not contiguous.
+ * The band's MSL limits come per run from bandRangeSql. Runs whose in-band bins are not contiguous (or whose
+ * altitudes hardly spread) are decided from their levels afterwards (loadBandLevels).
  */
 function candidateSql(viewer: Viewer, query: ClimatologyQuery, engine: SqlEngine): SqlFragment {
   const where = andSql(filterConditions(viewer, query, engine));
   const launchIso = engine === "sqlite" ? `substr(s."launchAtUtc", 1, 19) || 'Z'` : `to_char(s."launchAtUtc", 'YYYY-MM-DD"T"HH24:MI:SS"Z"')`;
-  const band = bandLimitsM(query);
+  const band = bandOf(query);
   const valueSql = band ? raw("NULL") : raw(METRIC_VALUE_SQL[query.metric as Exclude<ClimatologyMetric, "band-lapse-rate">]);
   if (!band && query.flights === "none") {
     // Summary only: the group key, the value and the site (for the claim's clustering caveat).
@@ -254,15 +285,18 @@ function candidateSql(viewer: Viewer, query: ClimatologyQuery, engine: SqlEngine
       FROM "FlightSummary" s JOIN "Flight" f ON f."id" = s."flightId"
       WHERE ${where}`;
   }
+  const range = band ? bandRangeSql(band, engine) : null;
+  const bandColumns = range
+    ? sql`, ${range.baseM} AS "bandBaseMslM", ${range.topM} AS "bandTopMslM", s."groundElevationM" AS "groundElevationM"`
+    : raw("");
   const candidates = sql`SELECT s."flightId" AS "flightId", s."runId" AS "runId", f."title" AS "title", s."siteId" AS "siteId",
       s."schoolId" AS "schoolId", ${raw(launchIso)} AS "launchAtUtc", s."dayOfYear" AS "dayOfYear", s."localHour" AS "localHour",
-      s."hoursAfterSunrise" AS "hoursAfterSunrise", ${groupKeySql(query, engine)} AS "groupKey", ${valueSql} AS "value"
+      s."hoursAfterSunrise" AS "hoursAfterSunrise", ${groupKeySql(query, engine)} AS "groupKey", ${valueSql} AS "value"${bandColumns}
     FROM "FlightSummary" s JOIN "Flight" f ON f."id" = s."flightId"
     WHERE ${where}`;
   if (!band) return candidates;
-  const midM = (band.baseM + band.topM) / 2;
   // x is the altitude in km from the band middle, which keeps the sums well conditioned.
-  const x = sql`((l."altitudeM" - ${midM}) / 1000.0)`;
+  const x = sql`((l."altitudeM" - (c."bandBaseMslM" + c."bandTopMslM") / 2.0) / 1000.0)`;
   // The candidates are materialised and drive the join (CROSS JOIN fixes the order on SQLite), so each
   // run's in-band levels are read by a range search on the (runId, phase, altitudeM) index.
   return sql`WITH c AS MATERIALIZED (${candidates}),
@@ -271,7 +305,7 @@ function candidateSql(viewer: Viewer, query: ClimatologyQuery, engine: SqlEngine
         SUM(${x} * l."temperatureK") AS sxy, MIN(l."altitudeM") AS lo, MAX(l."altitudeM") AS hi, MAX(l."topM" - l."baseM") AS bin,
         MIN(l."baseM") AS "lowBase", MAX(l."baseM") AS "highBase"
       FROM c CROSS JOIN "ProfileLevel" l
-      WHERE l."runId" = c."runId" AND l."phase" = ${query.phase} AND l."altitudeM" >= ${band.baseM} AND l."altitudeM" <= ${band.topM}
+      WHERE l."runId" = c."runId" AND l."phase" = ${query.phase} AND l."altitudeM" >= c."bandBaseMslM" AND l."altitudeM" <= c."bandTopMslM"
       GROUP BY l."runId"
     )
     SELECT c.*, sums.n AS "bandN", sums.sx AS "bandSx", sums.sy AS "bandSy", sums.sxx AS "bandSxx", sums.sxy AS "bandSxy",
@@ -279,27 +313,47 @@ function candidateSql(viewer: Viewer, query: ClimatologyQuery, engine: SqlEngine
     FROM c LEFT JOIN sums ON sums."runId" = c."runId"`;
 }
 
-export type BandCoverage = { lapseRateKPerKm: number; reason: null } | { lapseRateKPerKm: null; reason: "few-levels" | "low-end" | "high-end" | "gap" | "flat" };
+export type BandCoverage = { lapseRateKPerKm: number; reason: null } | { lapseRateKPerKm: null; reason: BandCoverageReason | "flat" };
+
+/** A run's figures as aggregated in SQL: least-squares sums (x in km from the band middle) and coverage figures. */
+export interface BandSums {
+  n: number | null;
+  sx: number | null;
+  sy: number | null;
+  sxx: number | null;
+  sxy: number | null;
+  lowM: number | null;
+  highM: number | null;
+  binM: number | null;
+  maxGapM: number | null;
+}
 
 /**
- * Lapse rate −dT/dz (K/km) of one run's band from the SQL sums, with the coverage rule of
- * lib/analysis/layers.ts computeBandLapseRate: at least 3 levels, lowest level centre within one
- * bin of the base, highest within one bin of the top, no gap of more than two empty bins. The bin
- * is the level width (fixed-altitude binning makes every level of a run equally wide).
+ * Below this spread of the in-band altitudes (standard deviation from the sums, km) the sums cannot tell a real
+ * spread from rounding, so the run's levels are read and fitted as the analysis fits them. Three levels in
+ * three bins of at least 10 m always spread further; the round-off of the sums stays near 1e-6 km.
  */
-export function bandLapseRateFromSums(
-  sums: { n: number | null; sx: number | null; sy: number | null; sxx: number | null; sxy: number | null; lowM: number | null; highM: number | null; binM: number | null; maxGapM: number | null },
-  baseM: number,
-  topM: number,
-): BandCoverage {
-  const { n, sx, sy, sxx, sxy, lowM, highM } = sums;
-  if (n === null || n < 3 || sx === null || sy === null || sxx === null || sxy === null || lowM === null || highM === null) {
-    return { lapseRateKPerKm: null, reason: "few-levels" };
-  }
-  const binM = sums.binM !== null && sums.binM > 0 ? sums.binM : 100;
-  if (lowM - baseM > binM) return { lapseRateKPerKm: null, reason: "low-end" };
-  if (topM - highM > binM) return { lapseRateKPerKm: null, reason: "high-end" };
-  if (sums.maxGapM !== null && sums.maxGapM > 3 * binM) return { lapseRateKPerKm: null, reason: "gap" };
+const SUMS_SPREAD_TOO_SMALL_KM = 1e-4;
+
+/** True when the sums cannot decide whether the altitudes spread beyond rounding (see SUMS_SPREAD_TOO_SMALL_KM). */
+export function sumsSpreadTooSmall(sums: BandSums): boolean {
+  const { n, sx, sxx } = sums;
+  if (n === null || n < 1 || sx === null || sxx === null) return false;
+  const centred = sxx - (sx * sx) / n;
+  return !(Math.sqrt(Math.max(centred, 0) / n) >= SUMS_SPREAD_TOO_SMALL_KM);
+}
+
+/**
+ * Lapse rate −dT/dz (K/km) of one run's band from the SQL sums. Coverage is decided by
+ * decideBandCoverage (lib/analysis/band-coverage.ts), the rule the analysis uses for its fixed bands;
+ * the caller reads the levels instead when the sums cannot decide the spread (sumsSpreadTooSmall) or
+ * the bins are not contiguous (maxGapM unknown).
+ */
+export function bandLapseRateFromSums(sums: BandSums, range: BandRangeMsl | null): BandCoverage {
+  const { n, sx, sy, sxx, sxy } = sums;
+  const reason = decideBandCoverage({ levelCount: n ?? 0, lowestM: sums.lowM, highestM: sums.highM, binM: sums.binM, maxStepM: sums.maxGapM }, range);
+  if (reason !== null) return { lapseRateKPerKm: null, reason };
+  if (n === null || sx === null || sy === null || sxx === null || sxy === null) return { lapseRateKPerKm: null, reason: "few-levels" };
   const denominator = n * sxx - sx * sx;
   if (!(denominator > 0)) return { lapseRateKPerKm: null, reason: "flat" };
   const slopeKPerKm = (n * sxy - sx * sy) / denominator;
@@ -307,37 +361,56 @@ export function bandLapseRateFromSums(
 }
 
 /**
- * Largest altitude step between consecutive in-band levels, for runs whose level count shows
- * missing bins; other runs are contiguous (one level per bin), so their largest step is one bin.
+ * Lapse rate of one run's band from its levels, exactly as the analysis fits a band
+ * (lib/analysis/layers.ts computeBandLapseRate): the same coverage rule, then ordinary least squares
+ * of T on altitude in km (regression.ts, which calls x values equal within rounding no fit).
  */
-async function bandGaps(handle: DbLike, runIds: readonly string[], phase: string, baseM: number, topM: number): Promise<Map<string, number>> {
-  const gaps = new Map<string, number>();
-  for (let i = 0; i < runIds.length; i += 500) {
-    const chunk = runIds.slice(i, i + 500);
-    const statement = sql`SELECT l."runId" AS "runId", l."altitudeM" AS "altitudeM" FROM "ProfileLevel" l
-      WHERE l."runId" IN ${listSql(chunk)} AND l."phase" = ${phase} AND l."altitudeM" >= ${baseM} AND l."altitudeM" <= ${topM}
-      ORDER BY l."runId", l."altitudeM"`;
-    const { text, values } = forEngine(statement, handle.engine);
-    const rows = await handle.db.$queryRawUnsafe<Array<{ runId: string; altitudeM: unknown }>>(text, ...values);
-    let previous: { runId: string; altitudeM: number } | null = null;
-    for (const row of rows) {
-      const altitudeM = toNumber(row.altitudeM);
-      if (altitudeM === null) continue;
-      if (previous && previous.runId === row.runId) gaps.set(row.runId, Math.max(gaps.get(row.runId) ?? 0, altitudeM - previous.altitudeM));
-      previous = { runId: row.runId, altitudeM };
-    }
-  }
-  return gaps;
+export function bandLapseRateFromLevels(levels: ReadonlyArray<BandLevel & { temperatureK: number }>, range: BandRangeMsl | null): BandCoverage {
+  if (range === null) return { lapseRateKPerKm: null, reason: "no-ground" };
+  const inBand = levelsInBand(levels, range);
+  const reason = decideBandCoverage(bandLevelFigures(inBand), range);
+  if (reason !== null) return { lapseRateKPerKm: null, reason };
+  const fit = fitOrdinaryLeastSquares(inBand.map((l) => l.altitudeM / 1000), inBand.map((l) => l.temperatureK));
+  if (!fit || !Number.isFinite(fit.slope)) return { lapseRateKPerKm: null, reason: "flat" };
+  return { lapseRateKPerKm: -fit.slope + 0, reason: null };
 }
 
-function bandSumsOf(row: CandidateRow) {
+/** The levels of the chosen phase of a few runs (those the sums cannot decide), lowest first. */
+async function loadBandLevels(handle: DbLike, runIds: readonly string[], phase: string): Promise<Map<string, Array<BandLevel & { temperatureK: number }>>> {
+  const out = new Map<string, Array<BandLevel & { temperatureK: number }>>();
+  for (let i = 0; i < runIds.length; i += 500) {
+    const chunk = runIds.slice(i, i + 500);
+    const statement = sql`SELECT l."runId" AS "runId", l."altitudeM" AS "altitudeM", l."baseM" AS "baseM", l."topM" AS "topM", l."temperatureK" AS "temperatureK"
+      FROM "ProfileLevel" l
+      WHERE l."runId" IN ${listSql(chunk)} AND l."phase" = ${phase}
+      ORDER BY l."runId", l."altitudeM"`;
+    const { text, values } = forEngine(statement, handle.engine);
+    const rows = await handle.db.$queryRawUnsafe<Array<{ runId: string; altitudeM: unknown; baseM: unknown; topM: unknown; temperatureK: unknown }>>(text, ...values);
+    for (const row of rows) {
+      const altitudeM = toNumber(row.altitudeM);
+      const baseM = toNumber(row.baseM);
+      const topM = toNumber(row.topM);
+      const temperatureK = toNumber(row.temperatureK);
+      if (altitudeM === null || baseM === null || topM === null || temperatureK === null) continue;
+      const list = out.get(row.runId) ?? [];
+      list.push({ altitudeM, baseM, topM, temperatureK });
+      out.set(row.runId, list);
+    }
+  }
+  return out;
+}
+
+function bandSumsOf(row: CandidateRow): BandSums {
+  const binM = toNumber(row.bandBinM);
   return {
     n: toNumber(row.bandN), sx: toNumber(row.bandSx), sy: toNumber(row.bandSy), sxx: toNumber(row.bandSxx), sxy: toNumber(row.bandSxy),
-    lowM: toNumber(row.bandLowM), highM: toNumber(row.bandHighM), binM: toNumber(row.bandBinM),
+    lowM: toNumber(row.bandLowM), highM: toNumber(row.bandHighM), binM,
+    // Contiguous bins (one level per bin) step less than two bins: no gap under the rule.
+    maxGapM: contiguousBins(row) ? binM : null,
   };
 }
 
-/** True when a run's in-band levels fill every bin from the lowest to the highest (no gap to check). */
+/** True when a run's in-band levels fill every bin from the lowest to the highest, one level each. */
 function contiguousBins(row: CandidateRow): boolean {
   const n = toNumber(row.bandN);
   const bin = toNumber(row.bandBinM);
@@ -428,14 +501,6 @@ async function checkReferences(handle: DbLike, query: ClimatologyQuery) {
   return { sites: siteNames, schools: schoolNames };
 }
 
-const BAND_REASON_WORDS: Record<Exclude<BandCoverage["reason"], null>, string> = {
-  "few-levels": "fewer than 3 levels in the band",
-  "low-end": "levels do not reach down to the band base",
-  "high-end": "levels do not reach up to the band top",
-  gap: "a data gap of more than two bins inside the band",
-  flat: "levels do not determine a slope",
-};
-
 function kmText(m: number): string {
   return String(Number((m / 1000).toFixed(3)));
 }
@@ -493,29 +558,32 @@ export async function getClimatology(
     options.profiles === false ? Promise.resolve(new Map<string, ProfileLevelMean[]>()) : loadProfiles(viewer, query, handle),
   ]);
   const metric = METRIC_INFO[query.metric];
-  const band = bandLimitsM(query);
+  const band = bandOf(query);
   const excludedByReason = new Map<string, number>();
   const exclude = (reason: string) => excludedByReason.set(reason, (excludedByReason.get(reason) ?? 0) + 1);
-  const bandWords = band ? `no coverage of ${kmText(band.baseM)}–${kmText(band.topM)} km (${query.phase})` : "";
+  const bandText = band ? `${kmText(band.baseM)}–${kmText(band.topM)} km ${band.reference.toUpperCase()}` : "";
+  const bandWords = band ? `no coverage of ${bandText} (${query.phase})` : "";
   const includeFlights = query.flights === "all";
   const byGroup = new Map<string, { values: number[]; siteNames: string[]; flights: ClimatologyFlight[] }>();
 
-  let gaps = new Map<string, number>();
+  // Runs the sums cannot decide (bins not contiguous, or altitudes that hardly spread) are decided from their levels.
+  let levelsOf = new Map<string, Array<BandLevel & { temperatureK: number }>>();
+  const rangeOf = (row: CandidateRow): BandRangeMsl | null => (band ? bandRangeMsl(band, toNumber(row.groundElevationM)) : null);
   if (band) {
-    const needGapCheck = rows.filter((row) => {
+    const needLevels = rows.filter((row) => {
       const sums = bandSumsOf(row);
-      return sums.n !== null && sums.n >= 3 && !contiguousBins(row);
+      return rangeOf(row) !== null && sums.n !== null && sums.n >= 3 && (sums.maxGapM === null || sumsSpreadTooSmall(sums));
     });
-    gaps = await bandGaps(handle, needGapCheck.map((row) => row.runId), query.phase, band.baseM, band.topM);
+    levelsOf = await loadBandLevels(handle, needLevels.map((row) => row.runId), query.phase);
   }
   for (const row of rows) {
     let value: number | null;
     if (band) {
-      const sums = bandSumsOf(row);
-      const maxGapM = contiguousBins(row) ? sums.binM : (gaps.get(row.runId) ?? null);
-      const coverage = bandLapseRateFromSums({ ...sums, maxGapM }, band.baseM, band.topM);
+      const range = rangeOf(row);
+      const levels = levelsOf.get(row.runId);
+      const coverage = levels ? bandLapseRateFromLevels(levels, range) : bandLapseRateFromSums(bandSumsOf(row), range);
       if (coverage.reason !== null) {
-        exclude(`${bandWords}: ${BAND_REASON_WORDS[coverage.reason]}`);
+        exclude(`${bandWords}: ${BAND_COVERAGE_REASON_WORDS[coverage.reason]}`);
         continue;
       }
       value = coverage.lapseRateKPerKm;
@@ -583,7 +651,7 @@ export async function getClimatology(
   }
 
   let claim: ClaimCheckResult | null = null;
-  const metricLabel = band ? `${metric.label} ${kmText(band.baseM)}–${kmText(band.topM)} km` : metric.label;
+  const metricLabel = band ? `${metric.label} ${bandText}` : metric.label;
   if (query.claim === "one-sample" && query.claimValue !== undefined) {
     claim = runClaimCheck({
       kind: "one-sample",
@@ -617,7 +685,7 @@ export async function getClimatology(
   if (excludedCount > 0) warnings.push(`${excludedCount} flight${excludedCount === 1 ? "" : "s"} excluded: ${excluded.map((e) => `${e.reason} (${e.count})`).join("; ")}`);
   return {
     metric: { ...metric, label: metricLabel },
-    band: band ? { ...band, phase: query.phase } : null,
+    band: band ? { baseM: band.baseM, topM: band.topM, reference: band.reference, phase: query.phase } : null,
     matchedFlightCount: rows.length,
     groups,
     overall: statistics(allValues),

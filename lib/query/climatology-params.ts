@@ -15,6 +15,7 @@ import {
   type SeasonCode,
   type SeasonName,
 } from "../analysis/season.ts";
+import { HEIGHT_REFERENCES } from "../analysis/band-coverage.ts";
 
 export const CLIMATOLOGY_METRICS = [
   "tropospheric-lapse-rate",
@@ -208,6 +209,11 @@ const climatologyBaseSchema = z.object({
   metric: enumWithDefault(CLIMATOLOGY_METRICS, "tropospheric-lapse-rate", "metric"),
   bandBaseKm: optionalNumber("bandBaseKm", -0.5, 60),
   bandTopKm: optionalNumber("bandTopKm", -0.5, 60),
+  /**
+   * What the band limits are measured from: agl (each flight's ground, its site's elevation) or msl (sea
+   * level). Default msl, the meaning band links had before they could say, so an old link keeps its answer.
+   */
+  bandReference: enumWithDefault(HEIGHT_REFERENCES, "msl", "bandReference"),
   groupBy: enumWithDefault(CLIMATOLOGY_GROUPINGS, "season", "groupBy"),
   binHours: z.preprocess(
     blankToUndefined,
@@ -358,6 +364,8 @@ export function climatologySearchParams(query: ClimatologyQuery, raw: Record<str
   if (query.metric === "band-lapse-rate") {
     set("bandBaseKm", query.bandBaseKm);
     set("bandTopKm", query.bandTopKm);
+    // Always written, so a shared link never depends on the default.
+    set("bandReference", query.bandReference);
   }
   set("groupBy", query.groupBy);
   if (query.groupBy === "launch-hour" || query.groupBy === "hours-after-sunrise") set("binHours", query.binHours);

@@ -195,3 +195,26 @@ describe("lowest measured altitude", () => {
     expect(a.summary.minAltitudeM).toBeGreaterThanOrEqual(1637);
   });
 });
+
+describe("fixed bands through the whole analysis at a 1,600 m site (issue 12)", () => {
+  // [D] a linear 6.5 K/km profile, launched from the site's ground at 1,600 m, 100 m bins
+  const profile = piecewiseProfile([[0, 290], [20000, 160]]);
+  const a = run(syntheticFlight({ temperatureAtAltitudeK: profile, groundM: 1600, topM: 12000 }), 1600, {
+    fixedBandsM: [{ baseM: 0, topM: 2000, reference: "agl" }, { baseM: 0, topM: 2000, reference: "msl" }],
+  });
+
+  test("0–2000 m AGL is fitted over 1600–3600 m MSL; the same band above sea level is not covered", () => {
+    expect(a.ok).toBe(true);
+    expect(a.summary.groundElevationM).toBe(1600);
+    const bands = a.layers.filter((l) => l.kind === "band" && l.phase === "ascent");
+    expect(bands).toHaveLength(1);
+    const band = bands[0];
+    expect(band?.band).toEqual({ baseM: 0, topM: 2000, reference: "agl", groundElevationM: 1600 });
+    expect(band).toMatchObject({ baseM: 1600, topM: 3600 });
+    expect(band?.fittedBaseM).toBeGreaterThanOrEqual(1600);
+    expect(band?.fittedBaseM).toBeLessThan(1700);
+    expect(band?.fittedTopM).toBeGreaterThan(3500);
+    expect(band?.levelCount).toBe(20);
+    expect(band?.lapseRateKPerKm).toBeCloseTo(6.5, 3);
+  });
+});

@@ -44,12 +44,61 @@ describe("band lapse rate", () => {
     expect(computeBandLapseRate(levels, 5000, 4000).layer).toBeNull();
   });
 
-  test("a band starting below ground is fitted from the ground up", () => {
+  test("a band starting below ground is not covered above sea level; above ground level it starts at the ground", () => {
     const elevated = levelsFromProfile(f, 600, 10000);
-    expect(computeBandLapseRate(elevated, 0, 2000).layer).toBeNull();
-    const r = computeBandLapseRate(elevated, 0, 2000, { groundM: 600 });
-    expect(r.layer?.baseM).toBe(0);
-    expect(r.layer?.lapseRateKPerKm).toBeCloseTo(6.5, 9);
+    // MSL 0–2000 m at a 600 m site: the levels start 650 m above the band base (more than one bin).
+    expect(computeBandLapseRate(elevated, 0, 2000).reason).toMatch(/down to 0 m/);
+    expect(computeBandLapseRate(elevated, 0, 2000, { reference: "msl", groundElevationM: 600 }).layer).toBeNull();
+    const r = computeBandLapseRate(elevated, 0, 2000, { reference: "agl", groundElevationM: 600 });
+    expect(r.layer).toMatchObject({ baseM: 600, topM: 2600, fittedBaseM: 650, fittedTopM: 2550, band: { baseM: 0, topM: 2000, reference: "agl", groundElevationM: 600 } });
+    expect(r.layer?.lapseRateKPerKm).toBeCloseTo(6.5, 9); // [D] linear profile
+    expect(computeBandLapseRate(elevated, 0, 2000, { reference: "agl" }).reason).toMatch(/ground elevation is unknown/);
+  });
+});
+
+describe("fixed bands at a 1,600 m site (issue 12)", () => {
+  // [D] a linear 6.5 K/km profile binned in 100 m steps from the ground at 1,600 m
+  const f = piecewiseProfile([[0, 290], [12000, 212]]);
+  const levels = levelsFromProfile(f, 1600, 12000);
+  const layersWith = (fixedBandsM: Parameters<typeof computePhaseLayers>[0]["fixedBandsM"]) =>
+    computePhaseLayers({
+      phase: "ascent", levels, surface: { altitudeM: 1600, temperatureK: f(1600), pressureHpa: null }, tropopause: { status: "not-found" },
+      fixedBandsM, groundElevationM: 1600, binSizeM: 100, inversionMergeGapM: 100, inversionMinStrengthK: 0.3,
+    }).layers.filter((l) => l.kind === "band");
+
+  test("0–2000 m AGL is fitted over 1600–3600 m MSL from 20 levels and says so", () => {
+    const [band] = layersWith([{ baseM: 0, topM: 2000, reference: "agl" }]);
+    expect(band).toMatchObject({ baseM: 1600, topM: 3600, fittedBaseM: 1650, fittedTopM: 3550, levelCount: 20 });
+    expect(band?.band).toEqual({ baseM: 0, topM: 2000, reference: "agl", groundElevationM: 1600 });
+    expect(band?.lapseRateKPerKm).toBeCloseTo(6.5, 9);
+  });
+
+  test("0–2000 m MSL there is not covered (the levels start 1,650 m above its base), so no layer", () => {
+    expect(layersWith([{ baseM: 0, topM: 2000, reference: "msl" }])).toEqual([]);
+    expect(computeBandLapseRate(levels, 0, 2000, { reference: "msl", groundElevationM: 1600 }).reason).toMatch(/does not reach down to 0 m .*lowest level 1650 m/);
+  });
+
+  test("2000–5000 m MSL is covered from 2050 m and keeps its limits", () => {
+    const [band] = layersWith([{ baseM: 2000, topM: 5000, reference: "msl" }]);
+    expect(band).toMatchObject({ baseM: 2000, topM: 5000, fittedBaseM: 2050, fittedTopM: 4950, levelCount: 30, band: { reference: "msl", groundElevationM: null } });
+  });
+
+  test("the default bands: 0–2 km above ground, 2–5 and 5–10 km above sea level", () => {
+    expect(params.fixedBandsM).toEqual([
+      { baseM: 0, topM: 2000, reference: "agl" },
+      { baseM: 2000, topM: 5000, reference: "msl" },
+      { baseM: 5000, topM: 10000, reference: "msl" },
+    ]);
+    expect(layersWith(params.fixedBandsM).map((l) => [l.baseM, l.topM])).toEqual([[1600, 3600], [2000, 5000], [5000, 10000]]);
+  });
+
+  test("non-band layers carry no band and the range they were fitted over", () => {
+    const all = computePhaseLayers({
+      phase: "ascent", levels, surface: { altitudeM: 1600, temperatureK: f(1600), pressureHpa: null }, tropopause: { status: "not-found" },
+      fixedBandsM: [], groundElevationM: 1600, binSizeM: 100, inversionMergeGapM: 100, inversionMinStrengthK: 0.3,
+    }).layers;
+    const trop = all.find((l) => l.kind === "troposphere");
+    expect(trop).toMatchObject({ band: null, fittedBaseM: 1600, fittedTopM: 11950 });
   });
 });
 
@@ -62,6 +111,7 @@ describe("phase layers", () => {
       surface: null,
       tropopause: { status: "found", altitudeM: 11000, temperatureK: 218.5, pressureHpa: null },
       fixedBandsM: params.fixedBandsM,
+      groundElevationM: 0,
       binSizeM: 100,
       inversionMergeGapM: 100,
       inversionMinStrengthK: 0.3,
@@ -82,7 +132,7 @@ describe("phase layers", () => {
     const f = piecewiseProfile([[0, 290], [8000, 238]]);
     const res = computePhaseLayers({
       phase: "ascent", levels: levelsFromProfile(f, 0, 8000), surface: null, tropopause: { status: "not-found" },
-      fixedBandsM: [], binSizeM: 100, inversionMergeGapM: 100, inversionMinStrengthK: 0.3,
+      fixedBandsM: [], groundElevationM: 0, binSizeM: 100, inversionMergeGapM: 100, inversionMinStrengthK: 0.3,
     });
     expect(res.warnings.map((w) => w.code)).toContain("troposphere-to-top");
     expect(res.layers.find((l) => l.kind === "troposphere")?.topM).toBeCloseTo(7950, 6);

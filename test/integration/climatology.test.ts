@@ -185,7 +185,7 @@ describe.each(testEngines())("climatology on %s (demo subset)", (engine) => {
     const flights = result.groups.flatMap((g) => g.flights);
     expect(flights.length).toBe(included);
     expect(result.excludedCount).toBe(rows.length - included);
-    if (result.excludedCount > 0) expect(result.excluded.every((e) => e.reason.startsWith(`no coverage of ${baseKm}–${topKm} km (ascent)`))).toBe(true);
+    if (result.excludedCount > 0) expect(result.excluded.every((e) => e.reason.startsWith(`no coverage of ${baseKm}–${topKm} km MSL (ascent)`))).toBe(true);
     for (const f of flights) {
       const reference = expected.get(f.flightId);
       expect(reference, f.title).not.toBeNull();
@@ -221,6 +221,40 @@ describe.each(testEngines())("climatology on %s (demo subset)", (engine) => {
     expect(result.excludedCount).toBeGreaterThan(0);
     expect(result.overall.n).toBeGreaterThan(0);
     expect(result.warnings.join(" ")).toMatch(/excluded: no coverage of 1–6 km/);
+  });
+
+  test("0–2 km above ground level counts the demo flights that reach 2 km above their ground; above sea level leaves out the high sites", async () => {
+    const rows = (await summaries()).filter((r) => !r.qcFlagged);
+    // [D] a flight reaching 2 km above its site's elevation covers the band from its first level up
+    const reaching = rows.filter((r) => r.groundElevationM !== null && r.maxAltitudeM !== null && r.maxAltitudeM - r.groundElevationM >= 2000);
+    expect(reaching.length).toBeGreaterThan(20);
+    const agl = await getClimatology(LOCAL, query({ metric: "band-lapse-rate", bandBaseKm: "0", bandTopKm: "2", bandReference: "agl", groupBy: "site" }), database);
+    expect(agl.band).toEqual({ baseM: 0, topM: 2000, reference: "agl", phase: "ascent" });
+    expect(agl.metric.label).toBe("band lapse rate 0–2 km AGL");
+    expect(agl.groups.flatMap((g) => g.flights.map((f) => f.flightId)).sort()).toEqual(reaching.map((r) => r.flightId).sort());
+    expect(agl.excludedCount).toBe(rows.length - reaching.length);
+    const msl = await attempt(getClimatology(LOCAL, query({ metric: "band-lapse-rate", bandBaseKm: "0", bandTopKm: "2", bandReference: "msl", groupBy: "site" }), database));
+    const mslSites = msl instanceof ClimatologyQueryError ? [] : msl.groups.map((g) => g.key);
+    const highSites = (await database.db.site.findMany({ where: { elevationM: { gt: 1000 } } })).map((s) => s.id);
+    expect(highSites.length).toBeGreaterThan(0);
+    for (const id of highSites) {
+      expect(agl.groups.map((g) => g.key)).toContain(id);
+      expect(mslSites).not.toContain(id);
+    }
+  });
+
+  test("stored fixed bands keep the band as asked and the range fitted: 0–2000 m AGL at a high site starts at its ground", async () => {
+    const site = await database.db.site.findFirstOrThrow({ where: { elevationM: { gt: 1500 } } });
+    const summary = await database.db.flightSummary.findFirstOrThrow({ where: { siteId: site.id, isCurrent: true, qcFlagged: false } });
+    expect(summary.groundElevationM).toBe(site.elevationM);
+    const bands = await database.db.layerStat.findMany({ where: { runId: summary.runId, kind: "band", phase: "ascent" }, orderBy: { bandBaseM: "asc" } });
+    const agl = bands.find((b) => b.bandReference === "agl");
+    expect(agl).toMatchObject({ bandBaseM: 0, bandTopM: 2000, groundElevationM: site.elevationM, baseM: site.elevationM, topM: site.elevationM + 2000 });
+    expect((agl?.fittedBaseM ?? 0) - site.elevationM).toBeGreaterThanOrEqual(0);
+    expect((agl?.fittedBaseM ?? 0) - site.elevationM).toBeLessThanOrEqual(100);
+    expect((agl?.fittedTopM ?? 0) - site.elevationM).toBeGreaterThan(1900);
+    expect(agl?.levelCount).toBeGreaterThanOrEqual(19);
+    expect(bands.filter((b) => b.bandReference === "msl").map((b) => [b.bandBaseM, b.bandTopM, b.groundElevationM])).toEqual([[2000, 5000, null], [5000, 10000, null]]);
   });
 
   test("bad input: unknown ids, contradictory filters, band base above top, empty claim groups", async () => {

@@ -7,7 +7,8 @@ import {
   searchRecord,
 } from "../../lib/query/climatology-params";
 import { andSql, forEngine, listSql, sql } from "../../lib/query/climatology-sql";
-import { bandLapseRateFromSums } from "../../lib/query/climatology-core";
+import { bandLapseRateFromLevels, bandLapseRateFromSums, sumsSpreadTooSmall } from "../../lib/query/climatology-core";
+import { computeBandLapseRate } from "../../lib/analysis/layers";
 
 describe("parseMonthSelection", () => {
   test.each([
@@ -105,8 +106,13 @@ describe("bandLapseRateFromSums", () => {
   };
 
   test("recovers the lapse rate of a straight profile", () => {
-    const r = bandLapseRateFromSums(sums, 1000, 2000);
+    const r = bandLapseRateFromSums(sums, { baseM: 1000, topM: 2000 });
     expect(r.lapseRateKPerKm).toBeCloseTo(6.5, 10);
+    expect(sumsSpreadTooSmall(sums)).toBe(false);
+  });
+
+  test("an AGL band without a ground is not covered", () => {
+    expect(bandLapseRateFromSums(sums, null)).toEqual({ lapseRateKPerKm: null, reason: "no-ground" });
   });
 
   test.each([
@@ -115,6 +121,39 @@ describe("bandLapseRateFromSums", () => {
     { change: { highM: 1850 }, reason: "high-end" },
     { change: { maxGapM: 301 }, reason: "gap" },
   ])("coverage rule: $reason", ({ change, reason }) => {
-    expect(bandLapseRateFromSums({ ...sums, ...change }, 1000, 2000)).toEqual({ lapseRateKPerKm: null, reason });
+    expect(bandLapseRateFromSums({ ...sums, ...change }, { baseM: 1000, topM: 2000 })).toEqual({ lapseRateKPerKm: null, reason });
+  });
+
+  test("altitudes equal within rounding are no fit, from the sums' point of view and from the levels, as in regression.ts", () => {
+    // [D] three levels 1 ulp apart at 2345.678 m: Sxx from the sums is round-off, not spread
+    const z = 2345.678;
+    const zs = [z, z + z * Number.EPSILON, z];
+    const levels = zs.map((altitudeM, i) => ({ phase: "ascent" as const, altitudeM, baseM: 2300, topM: 2400, sampleCount: 20, temperatureK: 270 - i, temperatureSdK: null, pressureHpa: null, relativeHumidityPct: null }));
+    const mid = 2350;
+    const x = zs.map((v) => (v - mid) / 1000);
+    const y = levels.map((l) => l.temperatureK);
+    const flat = {
+      n: 3, sx: x.reduce((a, v) => a + v, 0), sy: y.reduce((a, v) => a + v, 0), sxx: x.reduce((a, v) => a + v * v, 0),
+      sxy: x.reduce((a, v, i) => a + v * (y[i] as number), 0), lowM: z, highM: zs[1] as number, binM: 100, maxGapM: null,
+    };
+    expect(sumsSpreadTooSmall(flat)).toBe(true);
+    const range = { baseM: 2300, topM: 2400 };
+    expect(bandLapseRateFromLevels(levels, range)).toEqual({ lapseRateKPerKm: null, reason: "flat" });
+    expect(computeBandLapseRate(levels, 2300, 2400).layer).toBeNull();
+  });
+});
+
+describe("bandReference", () => {
+  test("defaults to msl, accepts agl, refuses anything else, and every band link names it", () => {
+    const msl = parseClimatologyQuery({ metric: "band-lapse-rate", bandBaseKm: "0", bandTopKm: "2" });
+    const agl = parseClimatologyQuery({ metric: "band-lapse-rate", bandBaseKm: "0", bandTopKm: "2", bandReference: "agl" });
+    if (!msl.ok || !agl.ok) throw new Error("should parse");
+    expect(msl.query.bandReference).toBe("msl");
+    expect(agl.query.bandReference).toBe("agl");
+    expect(climatologySearchParams(msl.query).get("bandReference")).toBe("msl");
+    expect(climatologySearchParams(agl.query).get("bandReference")).toBe("agl");
+    const bad = parseClimatologyQuery({ metric: "band-lapse-rate", bandBaseKm: "0", bandTopKm: "2", bandReference: "ground" });
+    expect(bad.ok).toBe(false);
+    if (!bad.ok) expect(bad.fieldErrors.bandReference?.[0]).toMatch(/agl, msl/);
   });
 });
