@@ -87,17 +87,21 @@ async function rememberAddress(db: Db, userId: string, address: string): Promise
  * claimed before the password is checked, so concurrent tries cannot exceed them:
  * - per account: 5 free tries, then a doubling wait (15 s … 5 min) before each further check; a
  *   correct password after the wait signs in and clears the count (the owner is slowed, never locked out);
- * - per client address: 20 free tries across all accounts, then the same doubling wait; a person
- *   signing in from an address they signed in from successfully before is exempt from it (their
- *   account's own limit still applies), so a guesser sharing a school's address cannot stop them.
+ * - per client address: 20 free tries across all accounts, then the same doubling wait;
+ * - from an address where the person signed in successfully before (within 90 days) the address's
+ *   limit does not apply and the account's limit counts separately for that address: guessing
+ *   from elsewhere, or on other accounts from the same address, does not make the owner wait there.
  * `address` comes from the trusted-proxy rule (app/_lib/viewer.ts getClientAddress).
  * Returns a new session secret for the cookie.
  */
 export async function signIn(db: Db, input: z.input<typeof signInSchema>, address: string): Promise<{ sessionSecret: string; userId: string; expiresAt: Date }> {
   const data = signInSchema.parse(input);
-  const accountKey = `account:${data.email}`;
+  const known = await isKnownAddress(db, data.email, address);
+  // From an address the person used before, the account's tries have a bucket of their own, so
+  // guessing from elsewhere cannot keep its owner waiting there.
+  const accountKey = known ? `account:${data.email}|from:${address}` : `account:${data.email}`;
   const addressKey = `address:${address}`;
-  const addressThrottled = !(await isKnownAddress(db, data.email, address));
+  const addressThrottled = !known;
   if (addressThrottled) {
     const byAddress = await reserveCheck(db, addressKey, ADDRESS_RULE);
     if (!byAddress.ok) throw rateLimited(byAddress.retryAfterMs, "address");

@@ -153,6 +153,19 @@ describe.each(testEngines())("accounts, tokens and visibility on %s", (engine) =
     await expect(signIn(database.db, { email: "mallory-target@example.org", password: "wrong wrong" }, "10.0.0.99")).rejects.toMatchObject({ code: "bad-credentials" });
   });
 
+  test("guessing from elsewhere does not make the owner wait at an address they signed in from before", async () => {
+    const owner = await createUser(database.db, { email: "usual-place@example.org", password, displayName: "Usual" });
+    await signIn(database.db, { email: "usual-place@example.org", password }, "198.18.0.1");
+    for (let i = 0; i < 8; i++) {
+      await signIn(database.db, { email: "usual-place@example.org", password: "wrong wrong" }, `203.0.113.${100 + i}`).catch(() => undefined);
+    }
+    await expect(signIn(database.db, { email: "usual-place@example.org", password }, "203.0.113.200")).rejects.toMatchObject({ code: "rate-limited" });
+    expect((await signIn(database.db, { email: "usual-place@example.org", password }, "198.18.0.1")).userId).toBe(owner.id);
+    // Wrong tries at the usual address are limited there too.
+    const atHome = await outcomes(Array.from({ length: 10 }, () => signIn(database.db, { email: "usual-place@example.org", password: "wrong wrong" }, "198.18.0.1")));
+    expect(atHome.checked).toBeLessThanOrEqual(ACCOUNT_RULE.freeFailures);
+  });
+
   test("the wait doubles after each further failure, up to 5 minutes", () => {
     expect([4, 5, 6, 7, 8, 9, 10, 50].map((n) => delayAfterFailuresMs(ACCOUNT_RULE, n) / 1000)).toEqual([0, 15, 30, 60, 120, 240, 300, 300]); // [D] 15 s × 2^(n−5), cap 300 s
     expect(delayAfterFailuresMs(ADDRESS_RULE, 19)).toBe(0);
