@@ -7,7 +7,7 @@ import { getViewer } from "@/app/_lib/viewer";
 import { can } from "@/lib/auth/permissions";
 import { NewSchoolForm } from "./_components/new-school-form";
 import { RemoveDemoForm } from "./_components/remove-demo-form";
-import { getDemoPresence } from "@/lib/query/demo";
+import { getDemoPresence } from "@/lib/ingest/demo-data";
 import { membersOnly } from "@/app/setup/_lib/members-only";
 
 export const metadata: Metadata = { title: "Setup" };

@@ -5,7 +5,7 @@
  * calibrations, logger layouts) by the names the generator gives them. Anything a real flight
  * still uses stays, and the report says so.
  */
-import type { Db, DbTransaction } from "../db/index.ts";
+import { getDb, type Db, type DbTransaction } from "../db/index.ts";
 import { requirePermission } from "../auth/permissions.ts";
 import type { Viewer } from "../auth/visibility.ts";
 import { generateDemoSetup } from "../../seed/demo-program.ts";
@@ -180,4 +180,10 @@ export async function removeDemoProgram(db: Db, viewer: Viewer, actor: Actor): P
     });
     return report;
   }, { timeout: 600_000, maxWait: 60_000 });
+}
+
+/** Whether the invented demo program is in the database, for the Setup page's removal control. */
+export async function getDemoPresence(db: Db = getDb()): Promise<{ schools: number; flights: number }> {
+  const [schools, flights] = await Promise.all([findDemoSchools(db), countDemoFlights(db)]);
+  return { schools: schools.length, flights };
 }

@@ -145,7 +145,7 @@ describe("phase layers", () => {
     const res = computePhaseLayers({
       phase: "ascent", levels: levelsFromProfile(f, 0, 20000), surface: null,
       tropopause: { status: "undetermined", reason: "a data gap", candidateAltitudeM: 11000 },
-      fixedBandsM: [], binSizeM: 100, inversionMergeGapM: 100, inversionMinStrengthK: 0.3,
+      fixedBandsM: [], groundElevationM: null, binSizeM: 100, inversionMergeGapM: 100, inversionMinStrengthK: 0.3,
     });
     expect(res.layers.filter((l) => l.kind === "elevated-inversion")).toEqual([]);
     expect(res.layers.filter((l) => l.kind === "stratosphere")).toEqual([]);
