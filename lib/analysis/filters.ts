@@ -233,6 +233,8 @@ export function detectStuckTemperature(
 ): StuckTemperatureSpan | null {
   const n = temperatureK.length;
   if (n < options.minSamples) return null;
+  // Record-wide facts, computed once so that many candidate runs cost little each.
+  let context: RecordContext | null = null;
   let best: StuckTemperatureSpan | null = null;
   for (let start = 0; start < n; ) {
     const value = temperatureK[start] as number;
@@ -248,7 +250,8 @@ export function detectStuckTemperature(
     const count = end - start + 1;
     const spanM = zMax - zMin;
     if (count >= options.minSamples && spanM >= options.minAltitudeSpanM && (best === null || spanM > best.altitudeSpanM)) {
-      const hidden = hiddenChange(altitudeM, temperatureK, start, end, spanM, options);
+      context ??= recordContext(temperatureK);
+      const hidden = hiddenChange(altitudeM, temperatureK, start, end, spanM, context, options);
       if (hidden.stuck) best = { startIndex: start, endIndex: end, sampleCount: count, temperatureK: value, altitudeSpanM: spanM, hiddenChangeK: hidden.changeK };
     }
     start = end + 1;
@@ -256,31 +259,19 @@ export function detectStuckTemperature(
   return best;
 }
 
-function hiddenChange(
-  altitudeM: Float64Array,
-  temperatureK: Float64Array,
-  start: number,
-  end: number,
-  spanM: number,
-  options: StuckTemperatureOptions,
-): { stuck: boolean; changeK: number | null } {
-  const n = temperatureK.length;
-  if (n - (end - start + 1) < options.minSamples) return { stuck: spanM >= options.minConstantSpanM, changeK: null };
-  const value = temperatureK[start] as number;
-  // Outside the run: the reading step at the run's value, and how often successive changes
-  // reverse (pairs across the run's edges are skipped).
-  let stepK = Number.POSITIVE_INFINITY;
+interface RecordContext {
+  /** Successive non-zero changes (identical readings skipped) and how many of them reverse direction. */
+  pairs: number;
+  reversals: number;
+  /** The distinct readings, ascending. */
+  distinctK: Float64Array;
+}
+
+function recordContext(temperatureK: Float64Array): RecordContext {
   let previousChange = 0;
   let pairs = 0;
   let reversals = 0;
-  for (let i = 0; i < n; i++) {
-    if (i >= start && i <= end) {
-      previousChange = 0;
-      continue;
-    }
-    const gap = Math.abs((temperatureK[i] as number) - value);
-    if (gap > SAME_READING_K && gap < stepK) stepK = gap;
-    if (i === 0 || i - 1 === end) continue;
+  for (let i = 1; i < temperatureK.length; i++) {
     const change = (temperatureK[i] as number) - (temperatureK[i - 1] as number);
     if (Math.abs(change) <= SAME_READING_K) continue;
     if (previousChange !== 0) {
@@ -289,7 +280,43 @@ function hiddenChange(
     }
     previousChange = change;
   }
-  if (pairs < options.minSamples || reversals < options.minReversalShare * pairs) return { stuck: false, changeK: null };
+  const sorted = Float64Array.from(temperatureK).sort();
+  let m = 0;
+  for (let i = 0; i < sorted.length; i++) {
+    if (m === 0 || (sorted[i] as number) - (sorted[m - 1] as number) > SAME_READING_K) sorted[m++] = sorted[i] as number;
+  }
+  return { pairs, reversals, distinctK: sorted.subarray(0, m) };
+}
+
+/** Gap from `value` (one of the readings) to the nearest other reading: the reading step there. */
+function stepAt(distinctK: Float64Array, value: number): number {
+  let lo = 0;
+  let hi = distinctK.length - 1;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if ((distinctK[mid] as number) < value - SAME_READING_K) lo = mid + 1;
+    else hi = mid;
+  }
+  const below = lo > 0 ? value - (distinctK[lo - 1] as number) : Number.POSITIVE_INFINITY;
+  const above = lo + 1 < distinctK.length ? (distinctK[lo + 1] as number) - value : Number.POSITIVE_INFINITY;
+  return Math.min(below, above);
+}
+
+function hiddenChange(
+  altitudeM: Float64Array,
+  temperatureK: Float64Array,
+  start: number,
+  end: number,
+  spanM: number,
+  context: RecordContext,
+  options: StuckTemperatureOptions,
+): { stuck: boolean; changeK: number | null } {
+  const n = temperatureK.length;
+  if (n - (end - start + 1) < options.minSamples) return { stuck: spanM >= options.minConstantSpanM, changeK: null };
+  // The run itself holds no change, so the record's reversal share is the rest's (up to the one
+  // pair that straddles the run).
+  if (context.pairs < options.minSamples || context.reversals < options.minReversalShare * context.pairs) return { stuck: false, changeK: null };
+  const value = temperatureK[start] as number;
   let changeK: number | null;
   if (end + 1 < n) {
     const resumed = Float64Array.from(temperatureK.subarray(end + 1, Math.min(n, end + 1 + RESUME_SAMPLES)));
@@ -298,7 +325,7 @@ function hiddenChange(
     const slope = slopeBelow(altitudeM, temperatureK, start, options.lapseDepthBelowM, options.minSamples);
     changeK = slope === null ? null : Math.abs(slope) * spanM;
   }
-  const stuck = changeK !== null && changeK >= options.minHiddenSteps * stepK && changeK >= options.minHiddenChangeK;
+  const stuck = changeK !== null && changeK >= options.minHiddenSteps * stepAt(context.distinctK, value) && changeK >= options.minHiddenChangeK;
   return { stuck, changeK };
 }
 
