@@ -54,7 +54,7 @@ export async function createUser(db: Db, input: z.input<typeof signUpSchema>, op
   });
 }
 
-/** A sign-in from an address this person has signed in from before (within this many days) skips the address's throttle. */
+/** How long a successful sign-in makes its address "known" for that person (see signIn). */
 const KNOWN_ADDRESS_DAYS = 90;
 
 function rateLimited(retryAfterMs: number, whose: "account" | "address"): AccountError {
