@@ -4,7 +4,7 @@ import type { Db } from "../../lib/db/index.ts";
 import { createCalibration, createLayout, createPayload, createSchool, createSensor, createSite } from "../../lib/ingest/index.ts";
 
 /** Invented flight (fixture data, not a real sounding): layout A, 10 mV/K sensor on a 10-bit ADC. */
-export function makeFlightFile(options: { seed?: number; burstAltitudeM?: number; tropopauseAltitudeM?: number } = {}) {
+export function makeFlightFile(options: { seed?: number; burstAltitudeM?: number; tropopauseAltitudeM?: number; preLaunchS?: number } = {}) {
   const params: FlightProfileParams = {
     atmosphere: {
       surfaceAltitudeM: 200, surfaceTemperatureK: 290, lapseRateKPerKm: 6.5,
@@ -13,7 +13,7 @@ export function makeFlightFile(options: { seed?: number; burstAltitudeM?: number
       windEastMPerS: 3, windNorthMPerS: 1, jetEastMPerS: 20,
     },
     latitudeDeg: 48.1, longitudeDeg: 9.2, ascentRateMPerS: 5, burstAltitudeM: options.burstAltitudeM ?? 20_000,
-    descent: null, preLaunchS: 60, postLandingS: 0, sampleIntervalS: 2, sensorTimeConstantS: 1, sensorNoiseK: 0.1,
+    descent: null, preLaunchS: options.preLaunchS ?? 60, postLandingS: 0, sampleIntervalS: 2, sensorTimeConstantS: 1, sensorNoiseK: 0.1,
     gpsSpikeCount: 0, hasPressure: false, hasHumidity: false,
   };
   const profile = generateFlightProfile(params, options.seed ?? 7);
