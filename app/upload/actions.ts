@@ -5,7 +5,7 @@ import { z } from "zod";
 import { getDb } from "@/lib/db";
 import {
   calibrationInputSchema, createCalibration, createLayout, createPayload, createSensor, createSite, IngestFailure,
-  ingestFlightFile, layoutInputSchema, loggerLayoutSpecSchema, OverlappingCalibrationError, parseLoggerFile, payloadInputSchema,
+  ingestFlightFile, layoutInputSchema, loggerLayoutSpecSchema, OverlappingCalibrationError, parseLoggerFile, payloadInputSchema, previewClockZone,
   sensorInputSchema, siteInputSchema, suggestLayout, type IngestIssue, type LayoutSuggestion, type LoggerLayoutSpec,
 } from "@/lib/ingest";
 import { currentActor, getViewer } from "@/app/_lib/viewer";
@@ -106,9 +106,9 @@ export async function previewLoggerFile(formData: FormData): Promise<ActionResul
   if (!layoutRow) return failure("That logger layout no longer exists");
   const spec = loggerLayoutSpecSchema.safeParse(layoutRow.spec);
   if (!spec.success) return failure(`The stored layout is invalid: ${spec.error.issues.map((i) => i.message).join("; ")}`);
-  const clockDate = fields.data.launchAtUtc ?? new Date(Date.UTC(2000, 0, 1));
+  const clockAnchor = fields.data.launchAtUtc ?? new Date(Date.UTC(2000, 0, 1, 12));
   try {
-    const parsed = await parseLoggerFile(bytes, spec.data, { fileName: name, mode: "lenient", clockDateUtc: clockDate, maxIssues: 20 });
+    const parsed = await parseLoggerFile(bytes, spec.data, { fileName: name, mode: "lenient", clockAnchorUtc: clockAnchor, clockZone: previewClockZone(spec.data.columns.time.clockZone), maxIssues: 20 });
     const rows: PreviewRow[] = parsed.samples.slice(0, PREVIEW_ROWS).map((s) => ({
       line: s.sourceLine, elapsedS: s.elapsedS, altitudeM: s.altitudeM, rawTemperature: s.rawTemperature, pressureHpa: s.pressureHpa,
       relativeHumidityPct: s.relativeHumidityPct, latitudeDeg: s.latitudeDeg, longitudeDeg: s.longitudeDeg,

@@ -29,7 +29,9 @@ Commands:
   demo remove                  delete exactly the demo flights and the demo setup nothing else uses
   ingest <files...>            upload logger files through the same pipeline as the web
       --school ID --site ID --layout ID [--sensor ID] [--payload ID] [--calibration ID]
-      [--launch ISO-UTC] [--visibility school|program|public] [--lenient] [--title TEXT]
+      [--launch ISO-8601] [--visibility school|program|public] [--lenient] [--title TEXT]
+                               --launch needs its offset (2025-07-14T06:41:00-05:00 or ...T11:41:00Z);
+                               it dates clock-time files and is checked against the file's clock
   reprocess (--all | --flight ID... | --calibration ID | --layout ID | --site ID) [--force]
                                re-analyse from the stored raw bytes as new runs (old runs are kept);
                                safe to interrupt and run again: up-to-date flights are skipped
@@ -151,7 +153,8 @@ async function runIngest(args: string[]): Promise<number> {
       });
       const tropopause = result.tropopauseAltitudeM === null ? "not found" : `${(result.tropopauseAltitudeM / 1000).toFixed(2)} km`;
       const lapse = result.troposphericLapseRateKPerKm === null ? "n/a" : `${result.troposphericLapseRateKPerKm.toFixed(2)} K/km`;
-      console.log(`${label}: flight ${result.flightId}, tropopause ${tropopause}, lapse rate ${lapse}${result.warnings.length ? `, ${result.warnings.length} warning(s)` : ""}`);
+      console.log(`${label}: flight ${result.flightId}, launch ${result.launchAtUtc.toISOString()}, tropopause ${tropopause}, lapse rate ${lapse}${result.warnings.length ? `, ${result.warnings.length} warning(s)` : ""}`);
+      for (const warning of result.warnings) console.log(`  warning (${warning.code}): ${warning.message}`);
     } catch (error) {
       failed++;
       if (error instanceof IngestFailure) {

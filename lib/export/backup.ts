@@ -112,7 +112,7 @@ export const BACKUP_MODELS: readonly ModelCodec[] = [
     insert: async (db, rows) => void (await db.rawFile.createMany({ data: rows as Prisma.RawFileCreateManyInput[] })),
   },
   {
-    model: "Flight", dates: ["launchAtUtc", "createdAt", "updatedAt", "deletedAt"], json: [], nullableJson: [],
+    model: "Flight", dates: ["launchAtUtc", "typedLaunchAtUtc", "createdAt", "updatedAt", "deletedAt"], json: [], nullableJson: [],
     count: (db) => db.flight.count(),
     page: (db, after, take) => db.flight.findMany({ where: afterString(after), orderBy: { id: "asc" }, take }),
     insert: async (db, rows) => void (await db.flight.createMany({ data: rows as Prisma.FlightCreateManyInput[] })),

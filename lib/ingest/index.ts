@@ -1,5 +1,6 @@
 export { IngestFailure, formatIssue, type IngestIssue } from "./errors.ts";
 export { loggerLayoutSpecSchema, type LoggerLayoutSpec } from "./layout.ts";
+export { previewClockZone, resolveClockZone, DEFAULT_CLOCK_ZONE } from "./clock-zone.ts";
 export { parseLoggerFile, decodeLoggerText, type ParsedLoggerFile, type ParseMode } from "./parse.ts";
 export { suggestLayout, type LayoutSuggestion } from "./suggest-layout.ts";
 export { prepareAnalysis, sha256Hex, directCalibrationFor } from "./pipeline.ts";

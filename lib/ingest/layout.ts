@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { isClockZoneSetting } from "./clock-zone.ts";
 
 /** A column reference: the header name when the file has a header row, else a 1-based index. */
 const columnRef = z.union([z.string().trim().min(1), z.number().int().positive()]);
@@ -14,7 +15,19 @@ export const loggerLayoutSpecSchema = z.object({
   commentPrefix: z.string().max(3).nullable(),
   decimalSeparator: z.enum([".", ","]),
   columns: z.object({
-    time: z.object({ column: columnRef, format: z.enum(["elapsed-seconds", "clock-time", "iso-datetime"]) }),
+    time: z.object({
+      column: columnRef,
+      format: z.enum(["elapsed-seconds", "clock-time", "iso-datetime"]),
+      /**
+       * The zone the logger's clock keeps, for clock times and for date-times written without an offset:
+       * "utc" (the default when absent), "site" (the flight's site's zone) or an IANA name such as "Europe/Berlin".
+       */
+      clockZone: z
+        .string()
+        .trim()
+        .refine(isClockZoneSetting, 'Clock zone must be "utc", "site" or an IANA time-zone name such as Europe/Berlin')
+        .optional(),
+    }),
     altitude: z.object({ column: columnRef, unit: z.enum(["m", "ft"]) }).optional(),
     temperature: z.object({ column: columnRef, unit: z.enum(["counts", "V", "mV", "degC", "K", "degF"]) }),
     pressure: z.object({ column: columnRef, unit: z.enum(["hPa", "Pa", "mbar"]) }).optional(),
@@ -25,6 +38,10 @@ export const loggerLayoutSpecSchema = z.object({
 }).superRefine((layout, ctx) => {
   if (layout.delimiter === "comma" && layout.decimalSeparator === ",") {
     ctx.addIssue({ code: "custom", path: ["decimalSeparator"], message: "A decimal comma needs a delimiter other than comma" });
+  }
+  const { format, clockZone } = layout.columns.time;
+  if (format === "elapsed-seconds" && clockZone !== undefined && clockZone !== "utc") {
+    ctx.addIssue({ code: "custom", path: ["columns", "time", "clockZone"], message: "Elapsed seconds have no clock: a clock zone applies only to clock times and date-times" });
   }
   if (!layout.columns.altitude && !layout.columns.pressure) {
     ctx.addIssue({ code: "custom", path: ["columns", "altitude"], message: "Map an altitude column or a pressure column (altitude is then derived from pressure)" });

@@ -2,6 +2,7 @@ import { Readable } from "node:stream";
 import { parse as createCsvParser } from "csv-parse";
 import type { RawSample } from "../analysis/types.ts";
 import { fileIssue, IngestFailure, type IngestIssue } from "./errors.ts";
+import { WallClockReader } from "./clock-zone.ts";
 import { DELIMITER_CHARACTERS, describeColumn, type LayoutColumnKey, type LoggerLayoutSpec } from "./layout.ts";
 
 export type ParseMode = "strict" | "lenient";
@@ -9,8 +10,13 @@ export type ParseMode = "strict" | "lenient";
 export interface ParseOptions {
   fileName: string;
   mode: ParseMode;
-  /** UTC date used for clock-time columns (HH:MM:SS has no date of its own). */
-  clockDateUtc?: Date | null;
+  /**
+   * The instant a clock-time file's first row is dated nearest to, normally the launch time typed with the
+   * upload (HH:MM:SS has no date of its own; see clock-zone.ts for the rules).
+   */
+  clockAnchorUtc?: Date | null;
+  /** IANA zone the file's clock keeps, for clock times and date-times without an offset; default "UTC". */
+  clockZone?: string;
   /** Issues reported before giving up in strict mode. */
   maxIssues?: number;
 }
@@ -23,6 +29,8 @@ export interface ParsedLoggerFile {
   dataRowCount: number;
   /** Rows skipped in lenient mode, each with the reason. */
   skippedRows: IngestIssue[];
+  /** File-level notes on how the clock was read (readings in a skipped or repeated daylight-saving hour). */
+  clockNotes: Array<{ code: string; message: string }>;
 }
 
 interface ResolvedColumn {
@@ -127,14 +135,20 @@ export async function parseLoggerFile(bytes: Uint8Array, layout: LoggerLayoutSpe
   let header: string[] | null = null;
   let columns: ResolvedColumn[] | null = layout.hasHeader ? null : resolveColumns(layout, null, fileName, 1);
   let firstAbsoluteMs: number | null = null;
-  let previousClockS: number | null = null;
-  let dayOffsetS = 0;
   let previousElapsedS: number | null = null;
   let dataRowCount = 0;
   // Fields a row may have: the header's count, or the first data row's when there is no header.
   let expectedFieldCount: number | null = null;
   let stopped = false;
-  const clockDate = options.clockDateUtc ?? null;
+  const timeFormat = layout.columns.time.format;
+  const clockZone = options.clockZone ?? "UTC";
+  const clock = new WallClockReader(clockZone, options.clockAnchorUtc ? options.clockAnchorUtc.getTime() : null);
+  if (timeFormat === "clock-time" && !clock.hasAnchor) {
+    // One message for the file: every row would otherwise repeat it.
+    throw new IngestFailure("launch-time-needed", [
+      fileIssue(fileName, "launch-time-needed", "The file's time column holds clock times (HH:MM:SS) without a date, so give the launch time with the upload; it dates the file"),
+    ]);
+  }
 
   const reject = (issue: IngestIssue) => {
     if (mode === "lenient") skippedRows.push(issue);
@@ -163,27 +177,21 @@ export async function parseLoggerFile(bytes: Uint8Array, layout: LoggerLayoutSpe
         };
         break;
       }
-      if (column.key === "time" && layout.columns.time.format !== "elapsed-seconds") {
-        const parsedTime = parseTimeField(field, layout.columns.time.format, clockDate);
-        if (parsedTime === "invalid" || parsedTime === "needs-date") {
+      if (column.key === "time" && timeFormat !== "elapsed-seconds") {
+        const reading = parseTimeField(field, timeFormat);
+        if (reading === null) {
           rowIssue = {
-            code: parsedTime === "needs-date" ? "clock-time-needs-date" : "bad-time",
-            message:
-              parsedTime === "needs-date"
-                ? "Clock times need the launch date: give the launch time with the upload"
-                : `"${field}" is not a ${layout.columns.time.format === "clock-time" ? "clock time (HH:MM:SS)" : "ISO 8601 date-time"}`,
+            code: "bad-time",
+            message: `"${field}" is not a ${timeFormat === "clock-time" ? "clock time (HH:MM:SS)" : "ISO 8601 date-time"}`,
             file: fileName, line, column: column.index + 1, columnName: column.name,
           };
           break;
         }
-        let absoluteMs = parsedTime;
-        if (layout.columns.time.format === "clock-time") {
-          // Clock times roll over at midnight UTC: a jump back of more than 12 h is the next day.
-          const clockS = (parsedTime - (clockDate ? Date.UTC(clockDate.getUTCFullYear(), clockDate.getUTCMonth(), clockDate.getUTCDate()) : 0)) / 1000;
-          if (previousClockS !== null && clockS + dayOffsetS < previousClockS - 12 * 3600) dayOffsetS += 86400;
-          previousClockS = clockS + dayOffsetS;
-          absoluteMs = parsedTime + dayOffsetS * 1000;
-        }
+        // Readings without a zone are the logger's clock, read in the layout's clock zone (clock-zone.ts).
+        const absoluteMs =
+          reading.kind === "instant" ? reading.utcMs
+          : reading.kind === "time-of-day" ? clock.readTimeOfDay(reading.secondsOfDay)
+          : clock.readLocalDateTime(reading.wallMs);
         firstAbsoluteMs ??= absoluteMs;
         values.time = (absoluteMs - firstAbsoluteMs) / 1000;
         continue;
@@ -272,6 +280,7 @@ export async function parseLoggerFile(bytes: Uint8Array, layout: LoggerLayoutSpe
     header,
     dataRowCount,
     skippedRows,
+    clockNotes: clockNotesOf(clock),
   };
 }
 
@@ -298,25 +307,49 @@ function longRowIssue(record: string[], expectedFieldCount: number, layout: Logg
   };
 }
 
+function clockNotesOf(clock: WallClockReader): Array<{ code: string; message: string }> {
+  const notes: Array<{ code: string; message: string }> = [];
+  if (clock.gapReadingCount > 0) {
+    notes.push({
+      code: "clock-in-skipped-hour",
+      message: `${clock.gapReadingCount} clock reading(s) fall in the hour ${clock.zone} skips when its clocks go forward; they were read with the offset in force before the change. If the logger's clock does not change for daylight saving, give its fixed zone (e.g. Etc/GMT+6 for UTC−6) as the layout's clock zone`,
+    });
+  }
+  if (clock.repeatedHourReadingCount > 0) {
+    notes.push({
+      code: "clock-repeated-hour",
+      message: `The clock stepped back into the hour ${clock.zone} repeats when its clocks go back; ${clock.repeatedHourReadingCount} reading(s) were read as the second pass through that hour`,
+    });
+  }
+  return notes;
+}
+
 /** Feeds the parser in 64 KiB pieces, as a file stream would. */
 function* chunksOf(text: string): Generator<string> {
   for (let i = 0; i < text.length; i += 65536) yield text.slice(i, i + 65536);
 }
 
-function parseTimeField(field: string, format: "clock-time" | "iso-datetime", clockDate: Date | null): number | "invalid" | "needs-date" {
+type TimeReading =
+  | { kind: "instant"; utcMs: number }
+  | { kind: "local-date-time"; wallMs: number }
+  | { kind: "time-of-day"; secondsOfDay: number };
+
+/** One time field: an instant (ISO with offset), a local date-time (ISO without one) or a time of day; null if invalid. */
+function parseTimeField(field: string, format: "clock-time" | "iso-datetime"): TimeReading | null {
   const text = field.trim();
   if (format === "iso-datetime") {
-    if (!/^\d{4}-\d{2}-\d{2}[T ]\d{2}:\d{2}/.test(text)) return "invalid";
-    const ms = Date.parse(HAS_ZONE.test(text) ? text.replace(" ", "T") : `${text.replace(" ", "T")}Z`);
-    return Number.isFinite(ms) ? ms : "invalid";
+    if (!/^\d{4}-\d{2}-\d{2}[T ]\d{2}:\d{2}/.test(text)) return null;
+    const zoned = HAS_ZONE.test(text);
+    // Without an offset the fields are parsed as if UTC ("wall" ms) and then read in the clock's zone.
+    const ms = Date.parse(zoned ? text.replace(" ", "T") : `${text.replace(" ", "T")}Z`);
+    if (!Number.isFinite(ms)) return null;
+    return zoned ? { kind: "instant", utcMs: ms } : { kind: "local-date-time", wallMs: ms };
   }
   const match = CLOCK_TIME.exec(text);
-  if (!match) return "invalid";
+  if (!match) return null;
   const [hours, minutes, seconds] = [Number(match[1]), Number(match[2]), Number(match[3] ?? 0)];
-  if (hours > 23 || minutes > 59 || seconds >= 61) return "invalid";
-  if (!clockDate) return "needs-date";
-  const midnight = Date.UTC(clockDate.getUTCFullYear(), clockDate.getUTCMonth(), clockDate.getUTCDate());
-  return midnight + ((hours * 60 + minutes) * 60 + seconds) * 1000;
+  if (hours > 23 || minutes > 59 || seconds >= 61) return null;
+  return { kind: "time-of-day", secondsOfDay: (hours * 60 + minutes) * 60 + seconds };
 }
 
 function toMetres(value: number | null, unit: "m" | "ft" | undefined): number | null {

@@ -115,7 +115,8 @@ export async function reprocessFlight(db: Db, flightId: string, options: { reaso
     const mode = flight.uploadMode === "lenient" ? "lenient" : "strict";
     const prepared = await prepareAnalysis({
       fileName, bytes: new Uint8Array(flight.rawFile.bytes), layout, calibration: calibration.spec, site: flight.site,
-      parameters, mode, launchAtUtcHint: flight.launchAtUtc,
+      // A clock-time file is dated by the launch time typed with it (flights stored before it was kept: the stored launch).
+      parameters, mode, launchAtUtcHint: flight.typedLaunchAtUtc ?? flight.launchAtUtc, typedLaunchAtUtc: flight.typedLaunchAtUtc,
     });
     const actor = options.actor ?? { userId: null, label: "reprocess" };
     const runId = await db.$transaction(

@@ -6,6 +6,7 @@ import { CalibrationError, type TemperatureCalibration } from "../analysis/types
 import { IngestFailure, type IngestIssue } from "./errors.ts";
 import { loggerLayoutSpecSchema, type LoggerLayoutSpec } from "./layout.ts";
 import { parseLoggerFile } from "./parse.ts";
+import { previewClockZone } from "./clock-zone.ts";
 import { analysisParametersSchema, temperatureCalibrationSchema } from "./schemas.ts";
 import { payloadInputSchema, sensorInputSchema, siteInputSchema } from "./setup.ts";
 import type { Actor } from "./store.ts";
@@ -395,7 +396,7 @@ export async function previewLayoutSample(bytes: Uint8Array, spec: LoggerLayoutS
   }
   const empty = { fileName, partial, header: null, dataRowCount: 0, rows: [], skipped: [] };
   try {
-    const parsed = await parseLoggerFile(head, spec, { fileName, mode: "lenient", clockDateUtc: new Date(Date.UTC(2000, 0, 1)), maxIssues: 20 });
+    const parsed = await parseLoggerFile(head, spec, { fileName, mode: "lenient", clockAnchorUtc: new Date(Date.UTC(2000, 0, 1, 12)), clockZone: previewClockZone(spec.columns.time.clockZone), maxIssues: 20 });
     return {
       fileName, partial, header: parsed.header, dataRowCount: parsed.dataRowCount,
       rows: parsed.samples.slice(0, LAYOUT_PREVIEW_ROWS).map((s) => ({

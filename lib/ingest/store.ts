@@ -114,6 +114,7 @@ export async function ingestFlightFile(db: Db, request: IngestRequest, options: 
     fileName, bytes, layout, site, parameters, mode: meta.mode,
     calibration: calibrationChoice.spec,
     launchAtUtcHint: meta.launchAtUtc ?? null,
+    typedLaunchAtUtc: meta.launchAtUtc ?? null,
   });
   // A calibration chosen by time is re-checked against the launch time found in the file.
   let calibrationId = calibrationChoice.id;
@@ -124,7 +125,7 @@ export async function ingestFlightFile(db: Db, request: IngestRequest, options: 
     if (atLaunch && atLaunch.id !== calibrationId) {
       calibrationId = atLaunch.id;
       calibrationSpec = parseStoredCalibration(atLaunch.spec, fileName);
-      finalPrepared = await prepareAnalysis({ fileName, bytes, layout, site, parameters, mode: meta.mode, calibration: calibrationSpec, launchAtUtcHint: meta.launchAtUtc ?? null });
+      finalPrepared = await prepareAnalysis({ fileName, bytes, layout, site, parameters, mode: meta.mode, calibration: calibrationSpec, launchAtUtcHint: meta.launchAtUtc ?? null, typedLaunchAtUtc: meta.launchAtUtc ?? null });
     }
   }
 
@@ -142,7 +143,7 @@ export async function ingestFlightFile(db: Db, request: IngestRequest, options: 
           data: {
             schoolId: meta.schoolId, siteId: site.id, layoutId: layoutRow.id, rawFileId: rawFile.id,
             payloadId: meta.payloadId ?? null, sensorId: meta.sensorId ?? null,
-            title, notes: meta.notes ?? "", launchAtUtc: finalPrepared.launchAtUtc, visibility: meta.visibility,
+            title, notes: meta.notes ?? "", launchAtUtc: finalPrepared.launchAtUtc, typedLaunchAtUtc: meta.launchAtUtc ?? null, visibility: meta.visibility,
             synthetic: request.synthetic ?? false, uploadMode: meta.mode, createdById: actor.userId,
           },
           select: { id: true },
@@ -187,7 +188,7 @@ function duplicateFailure(fileName: string, flightId: string | null): IngestFail
 }
 
 function runWarnings(prepared: PreparedAnalysis) {
-  const warnings = [...prepared.analysis.qc.warnings];
+  const warnings = [...prepared.analysis.qc.warnings, ...prepared.timeWarnings];
   if (prepared.skippedRows.length) {
     warnings.push({ code: "skipped-rows", message: `${prepared.skippedRows.length} bad row(s) skipped in lenient mode; first at line ${prepared.skippedRows[0]?.line ?? "?"}: ${prepared.skippedRows[0]?.message ?? ""}` });
   }

@@ -81,6 +81,7 @@ export function suggestLayout(sampleText: string, name = "New layout"): LayoutSu
     : timeValues.some((v) => /^\d{1,2}:\d{2}(:\d{2})?/.test(v))
       ? "clock-time"
       : "elapsed-seconds";
+  const clockZone = guessClockZone(timeFormat, names[timeIndex ?? 0] ?? "", timeValues, allLines.filter((l) => commentPrefix && l.trimStart().startsWith(commentPrefix)), notes);
 
   const altitudeIndex = pick(/alt|height|elev|^z$|^h$/);
   const altitudeUnit = altitudeIndex !== null && /ft|feet/.test(names[altitudeIndex] ?? "") ? "ft" : "m";
@@ -114,7 +115,7 @@ export function suggestLayout(sampleText: string, name = "New layout"): LayoutSu
     commentPrefix,
     decimalSeparator,
     columns: {
-      time: { column: ref(timeIndex ?? 0), format: timeFormat },
+      time: { column: ref(timeIndex ?? 0), format: timeFormat, ...(clockZone ? { clockZone } : {}) },
       temperature: { column: ref(temperatureIndex ?? 0), unit: temperatureUnit },
       ...(altitudeIndex !== null ? { altitude: { column: ref(altitudeIndex), unit: altitudeUnit } } : {}),
       ...(pressureIndex !== null ? { pressure: { column: ref(pressureIndex), unit: pressureUnit } } : {}),
@@ -124,4 +125,27 @@ export function suggestLayout(sampleText: string, name = "New layout"): LayoutSu
     },
   };
   return { spec, notes, previewHeader: header, previewRows: data.slice(0, 8) };
+}
+
+const LOCAL_WORDS = /(^|[^a-z])(local|lt|lokal|site)([^a-z]|$)/;
+const UTC_WORDS = /(^|[^a-z])(utc|gmt|zulu|z)([^a-z]|$)/;
+const ISO_OFFSET = /(Z|[+-]\d{2}:?\d{2})$/i;
+
+/**
+ * The zone a clock column keeps, guessed from its header (and comment lines): "local" words mean the site's
+ * zone, "utc" words UTC; otherwise UTC with a note asking the user to check. Null for elapsed seconds and for
+ * date-times that carry their own offset.
+ */
+function guessClockZone(format: LoggerLayoutSpec["columns"]["time"]["format"], timeName: string, timeValues: string[], commentLines: string[], notes: string[]): string | null {
+  if (format === "elapsed-seconds") return null;
+  if (format === "iso-datetime" && timeValues.filter((v) => v !== "").every((v) => ISO_OFFSET.test(v.trim()))) return null;
+  const comments = commentLines.map((l) => l.toLowerCase());
+  const local = LOCAL_WORDS.test(timeName) || comments.some((c) => /\blocal time\b/.test(c));
+  const utc = UTC_WORDS.test(timeName) || comments.some((c) => /\b(utc|gmt)\b/.test(c));
+  if (local && !utc) {
+    notes.push("Clock times read in the launch site's time zone (the time column says local time); check it.");
+    return "site";
+  }
+  notes.push(utc ? "Clock times read as UTC (the time column says UTC)." : "Clock times read as UTC; if the logger's clock keeps local time, choose the launch site's time zone or name the zone.");
+  return "utc";
 }

@@ -7,7 +7,7 @@ import { createCalibration, createLayout, createPayload, createSchool, createSen
  * Invented flight (fixture data, not a real sounding): layout A, 10 mV/K sensor on a 10-bit ADC;
  * with `withPressure`, layout A with its pressure and humidity board (COMMA_COUNTS_MET_LAYOUT).
  */
-export function makeFlightFile(options: { seed?: number; burstAltitudeM?: number; tropopauseAltitudeM?: number; withPressure?: boolean } = {}) {
+export function makeFlightFile(options: { seed?: number; burstAltitudeM?: number; tropopauseAltitudeM?: number; withPressure?: boolean; preLaunchS?: number } = {}) {
   const params: FlightProfileParams = {
     atmosphere: {
       surfaceAltitudeM: 200, surfaceTemperatureK: 290, lapseRateKPerKm: 6.5,
@@ -16,7 +16,7 @@ export function makeFlightFile(options: { seed?: number; burstAltitudeM?: number
       windEastMPerS: 3, windNorthMPerS: 1, jetEastMPerS: 20,
     },
     latitudeDeg: 48.1, longitudeDeg: 9.2, ascentRateMPerS: 5, burstAltitudeM: options.burstAltitudeM ?? 20_000,
-    descent: null, preLaunchS: 60, postLandingS: 0, sampleIntervalS: 2, sensorTimeConstantS: 1, sensorNoiseK: 0.1,
+    descent: null, preLaunchS: options.preLaunchS ?? 60, postLandingS: 0, sampleIntervalS: 2, sensorTimeConstantS: 1, sensorNoiseK: 0.1,
     gpsSpikeCount: 0, hasPressure: options.withPressure === true, hasHumidity: options.withPressure === true,
   };
   const profile = generateFlightProfile(params, options.seed ?? 7);

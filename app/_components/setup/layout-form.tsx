@@ -5,12 +5,13 @@ import { useRouter } from "next/navigation";
 import type { LoggerLayoutSpec } from "@/lib/ingest/layout";
 import type { LayoutPreview } from "@/lib/ingest/setup-more";
 import { previewLayout, saveLayout, suggestLayoutFromSample } from "@/app/setup/actions";
+import { ClockZoneField } from "./clock-zone-field";
 import { Field, FieldErrorList, FormMessage } from "./form-bits";
 
 type ColumnKey = keyof LoggerLayoutSpec["columns"];
 
 const COLUMNS: Array<{ key: ColumnKey; label: string; required: boolean; option?: { name: "format" | "unit"; choices: Array<[string, string]> } }> = [
-  { key: "time", label: "Time", required: true, option: { name: "format", choices: [["elapsed-seconds", "seconds since start"], ["clock-time", "clock time HH:MM:SS (UTC)"], ["iso-datetime", "ISO date-time"]] } },
+  { key: "time", label: "Time", required: true, option: { name: "format", choices: [["elapsed-seconds", "seconds since start"], ["clock-time", "clock time HH:MM:SS"], ["iso-datetime", "ISO date-time"]] } },
   { key: "altitude", label: "Altitude", required: false, option: { name: "unit", choices: [["m", "m"], ["ft", "ft"]] } },
   { key: "temperature", label: "Temperature", required: true, option: { name: "unit", choices: [["counts", "ADC counts"], ["V", "V"], ["mV", "mV"], ["degC", "°C"], ["K", "K"], ["degF", "°F"]] } },
   { key: "pressure", label: "Pressure", required: false, option: { name: "unit", choices: [["hPa", "hPa"], ["Pa", "Pa"], ["mbar", "mbar"]] } },
@@ -30,7 +31,7 @@ function columnsFrom(spec: LoggerLayoutSpec | null): ColumnState {
   return state;
 }
 
-function buildSpec(base: { name: string; delimiter: LoggerLayoutSpec["delimiter"]; hasHeader: boolean; commentPrefix: string; decimalSeparator: "." | "," }, columns: ColumnState): LoggerLayoutSpec {
+function buildSpec(base: { name: string; delimiter: LoggerLayoutSpec["delimiter"]; hasHeader: boolean; commentPrefix: string; decimalSeparator: "." | "," }, columns: ColumnState, clockZone: string): LoggerLayoutSpec {
   const mapped: Record<string, unknown> = {};
   for (const c of COLUMNS) {
     const { column, option } = columns[c.key];
@@ -38,6 +39,8 @@ function buildSpec(base: { name: string; delimiter: LoggerLayoutSpec["delimiter"
     if (text === "" && !c.required) continue;
     const ref = !base.hasHeader && /^\d+$/.test(text) ? Number(text) : text;
     mapped[c.key] = c.option ? { column: ref, [c.option.name]: option } : { column: ref };
+    // Elapsed seconds have no clock, so no clock zone.
+    if (c.key === "time" && option !== "elapsed-seconds") mapped[c.key] = { column: ref, format: option, clockZone };
   }
   return {
     name: base.name, delimiter: base.delimiter, hasHeader: base.hasHeader, decimalSeparator: base.decimalSeparator,
@@ -61,6 +64,7 @@ export function LayoutForm({ initial, schools }: { initial: { id?: string; schoo
     commentPrefix: initial.spec?.commentPrefix ?? "", decimalSeparator: initial.spec?.decimalSeparator ?? ".",
   } as { name: string; delimiter: LoggerLayoutSpec["delimiter"]; hasHeader: boolean; commentPrefix: string; decimalSeparator: "." | "," });
   const [columns, setColumns] = useState<ColumnState>(() => columnsFrom(initial.spec));
+  const [clockZone, setClockZone] = useState(initial.spec?.columns.time.clockZone ?? "utc");
   const [sample, setSample] = useState<File | null>(null);
   const [preview, setPreview] = useState<LayoutPreview | null>(null);
   const [previewError, setPreviewError] = useState<string | null>(null);
@@ -72,7 +76,7 @@ export function LayoutForm({ initial, schools }: { initial: { id?: string; schoo
   const [dragging, setDragging] = useState(false);
   const [notes, setNotes] = useState<string[]>([]);
   const request = useRef(0);
-  const spec = buildSpec(base, columns);
+  const spec = buildSpec(base, columns, clockZone);
   const specKey = JSON.stringify(spec);
 
   useEffect(() => {
@@ -112,6 +116,7 @@ export function LayoutForm({ initial, schools }: { initial: { id?: string; schoo
     const suggested = result.data.spec;
     setBase({ name: base.name || suggested.name, delimiter: suggested.delimiter, hasHeader: suggested.hasHeader, commentPrefix: suggested.commentPrefix ?? "", decimalSeparator: suggested.decimalSeparator });
     setColumns(columnsFrom(suggested));
+    setClockZone(suggested.columns.time.clockZone ?? "utc");
     setNotes(result.data.notes);
   }
 
@@ -199,6 +204,9 @@ export function LayoutForm({ initial, schools }: { initial: { id?: string; schoo
             </tbody>
           </table>
         </div>
+        {columns.time.option !== "elapsed-seconds" && (
+          <ClockZoneField id={`${uid}-clock-zone`} value={clockZone} onChange={setClockZone} error={errors["spec.columns.time.clockZone"]} />
+        )}
       </section>
 
       <section className="panel" aria-labelledby={`${uid}-preview`}>

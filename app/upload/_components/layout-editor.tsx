@@ -4,6 +4,7 @@ import { useId, useState } from "react";
 import type { UploadChoices } from "@/lib/query/setup";
 import type { LoggerLayoutSpec } from "@/lib/ingest/layout";
 import { saveLoggerLayout } from "../actions";
+import { ClockZoneField } from "@/app/_components/setup/clock-zone-field";
 import { FieldErrors, saveOnEnter } from "./site-payload-editors";
 
 type Layout = UploadChoices["layouts"][number];
@@ -18,7 +19,7 @@ interface ColumnField {
 }
 
 const COLUMN_FIELDS: ColumnField[] = [
-  { key: "time", label: "Time", required: true, optionLabel: "Format", options: [["elapsed-seconds", "seconds since start"], ["clock-time", "clock time HH:MM:SS (UTC)"], ["iso-datetime", "ISO date-time"]] },
+  { key: "time", label: "Time", required: true, optionLabel: "Format", options: [["elapsed-seconds", "seconds since start"], ["clock-time", "clock time HH:MM:SS"], ["iso-datetime", "ISO date-time"]] },
   { key: "altitude", label: "Altitude", required: false, optionLabel: "Unit", options: [["m", "m"], ["ft", "ft"]] },
   { key: "temperature", label: "Temperature", required: true, optionLabel: "Unit", options: [["counts", "raw ADC counts"], ["V", "V"], ["mV", "mV"], ["degC", "°C"], ["K", "K"], ["degF", "°F"]] },
   { key: "pressure", label: "Pressure", required: false, optionLabel: "Unit", options: [["hPa", "hPa"], ["Pa", "Pa"], ["mbar", "mbar"]] },
@@ -41,7 +42,7 @@ function initialColumns(spec: LoggerLayoutSpec | null): ColumnState {
 }
 
 /** Builds a layout spec from the editor's text fields; the server validates it with the shared schema. */
-function buildSpec(base: { name: string; delimiter: LoggerLayoutSpec["delimiter"]; hasHeader: boolean; commentPrefix: string; decimalSeparator: "." | "," }, columns: ColumnState): LoggerLayoutSpec {
+function buildSpec(base: { name: string; delimiter: LoggerLayoutSpec["delimiter"]; hasHeader: boolean; commentPrefix: string; decimalSeparator: "." | "," }, columns: ColumnState, clockZone: string): LoggerLayoutSpec {
   const ref = (text: string): string | number => {
     const trimmed = text.trim();
     return !base.hasHeader && /^\d+$/.test(trimmed) ? Number(trimmed) : trimmed;
@@ -51,7 +52,11 @@ function buildSpec(base: { name: string; delimiter: LoggerLayoutSpec["delimiter"
     const { column, option } = columns[field.key];
     if (column.trim() === "" && !field.required) continue;
     const entry: Record<string, unknown> = { column: ref(column) };
-    if (field.key === "time") entry.format = option;
+    if (field.key === "time") {
+      entry.format = option;
+      // Elapsed seconds have no clock, so no clock zone.
+      if (option !== "elapsed-seconds") entry.clockZone = clockZone;
+    }
     else if (field.options) entry.unit = option;
     mapped[field.key] = entry;
   }
@@ -84,6 +89,7 @@ export function LayoutEditor({
     decimalSeparator: initialSpec?.decimalSeparator ?? ".",
   });
   const [columns, setColumns] = useState<ColumnState>(() => initialColumns(initialSpec));
+  const [clockZone, setClockZone] = useState(initialSpec?.columns.time.clockZone ?? "utc");
   const [errors, setErrors] = useState<Record<string, string[]>>({});
   const [message, setMessage] = useState<string | null>(null);
   const [saving, setSaving] = useState(false);
@@ -91,7 +97,7 @@ export function LayoutEditor({
 
   async function save() {
     setSaving(true);
-    const result = await saveLoggerLayout({ schoolId, spec: buildSpec(base, columns) });
+    const result = await saveLoggerLayout({ schoolId, spec: buildSpec(base, columns, clockZone) });
     setSaving(false);
     if (result.ok) onSaved(result.data);
     else { setErrors(result.fieldErrors); setMessage(result.message); }
@@ -174,6 +180,9 @@ export function LayoutEditor({
           </tbody>
         </table>
       </div>
+      {columns.time.option !== "elapsed-seconds" && (
+        <ClockZoneField id={`${uid}-clock-zone`} value={clockZone} onChange={setClockZone} error={errors["spec.columns.time.clockZone"]} />
+      )}
       <div className="actions">
         <button type="button" onClick={save} disabled={saving}>{saving ? "Saving…" : "Save layout"}</button>
         <button type="button" className="button-secondary" onClick={onCancel}>Cancel</button>

@@ -1,6 +1,7 @@
 "use client";
 
 import Link from "next/link";
+import { DateTime } from "luxon";
 import { useRouter } from "next/navigation";
 import { useEffect, useId, useMemo, useRef, useState, type FormEvent } from "react";
 import type { UploadChoices } from "@/lib/query/setup";
@@ -42,9 +43,21 @@ function layoutTemperatureUnit(layout: Layout | undefined): string | null {
   return spec?.columns?.temperature?.unit ?? null;
 }
 
-/** "2025-07-14T06:30" from a datetime-local input, read as UTC. */
-function utcFromLocalInput(value: string): string {
-  return value ? `${value}${value.length === 16 ? ":00" : ""}Z` : "";
+/**
+ * "2025-07-14T06:30" from a datetime-local input, read as a wall-clock time in `zone`, as ISO 8601 with its offset
+ * (what the upload schema asks for); "" when empty or not a time.
+ */
+function instantFromLocalInput(value: string, zone: string): string {
+  if (!value) return "";
+  const local = DateTime.fromISO(value, { zone });
+  return local.isValid ? (local.toISO({ suppressMilliseconds: true }) ?? "") : "";
+}
+
+/** The zone a layout's clock keeps, for typing the launch time in the same zone; null for elapsed seconds or UTC. */
+function layoutClockZone(layout: Layout | undefined, site: Site | undefined): string | null {
+  const time = (layout?.spec as LoggerLayoutSpec | undefined)?.columns?.time;
+  if (!time || time.format === "elapsed-seconds" || !time.clockZone || time.clockZone === "utc") return null;
+  return time.clockZone === "site" ? (site?.timeZone ?? null) : time.clockZone;
 }
 
 function formatKm(m: number | null): string {
@@ -72,6 +85,8 @@ export function UploadForm({ choices, maxUploadMb }: { choices: UploadChoices; m
   const [sensorId, setSensorId] = useState("");
   const [calibrationId, setCalibrationId] = useState("");
   const [launchAt, setLaunchAt] = useState("");
+  /** The zone the launch time is typed in, once the user picks one; until then the logger clock's zone, else UTC. */
+  const [launchZoneChoice, setLaunchZoneChoice] = useState<string | null>(null);
   const [visibility, setVisibility] = useState<"school" | "program" | "public">("program");
   const [mode, setMode] = useState<"strict" | "lenient">("strict");
   const [title, setTitle] = useState("");
@@ -89,6 +104,11 @@ export function UploadForm({ choices, maxUploadMb }: { choices: UploadChoices; m
   const previewRequest = useRef(0);
 
   const selectedLayout = allLayouts.find((l) => l.id === layoutId);
+  const selectedSite = allSites.find((s) => s.id === siteId);
+  const clockZone = layoutClockZone(selectedLayout, selectedSite);
+  const launchZoneOptions = [...new Set(["UTC", ...(selectedSite ? [selectedSite.timeZone] : []), ...(clockZone ? [clockZone] : [])])];
+  const launchZone = launchZoneChoice && launchZoneOptions.includes(launchZoneChoice) ? launchZoneChoice : (clockZone ?? "UTC");
+  const launchInstant = instantFromLocalInput(launchAt, launchZone);
   const selectedSensor = allSensors.find((s) => s.id === sensorId);
   const previewFile = files[previewIndex] ?? files[0] ?? null;
 
@@ -114,7 +134,7 @@ export function UploadForm({ choices, maxUploadMb }: { choices: UploadChoices; m
     form.append("file", new File([previewFile.slice(0, 64 * 1024)], previewFile.name));
     form.append("truncated", previewFile.size > 64 * 1024 ? "1" : "0");
     form.append("layoutId", layoutId);
-    form.append("launchAtUtc", utcFromLocalInput(launchAt));
+    form.append("launchAtUtc", launchInstant);
     previewLoggerFile(form)
       .then((result) => {
         if (request !== previewRequest.current) return;
@@ -125,7 +145,7 @@ export function UploadForm({ choices, maxUploadMb }: { choices: UploadChoices; m
         if (request !== previewRequest.current) return;
         setPreview({ loading: false, result: null, error: error instanceof Error ? error.message : "The preview failed" });
       });
-  }, [previewFile, layoutId, launchAt]);
+  }, [previewFile, layoutId, launchInstant]);
 
   function openLayoutEditor(spec: LoggerLayoutSpec | null) {
     setLayoutDraft(spec ?? preview.result?.suggestion?.spec ?? null);
@@ -169,7 +189,7 @@ export function UploadForm({ choices, maxUploadMb }: { choices: UploadChoices; m
       form.append("payloadId", payloadId);
       form.append("sensorId", sensorId);
       form.append("calibrationId", sensorId ? calibrationId : "");
-      form.append("launchAtUtc", utcFromLocalInput(launchAt));
+      form.append("launchAtUtc", launchInstant);
       form.append("visibility", visibility);
       form.append("mode", mode);
       if (files.length === 1 && title.trim()) form.append("title", title.trim());
@@ -198,7 +218,7 @@ export function UploadForm({ choices, maxUploadMb }: { choices: UploadChoices; m
   const ids = {
     school: `${uid}-school`, site: `${uid}-site`, layout: `${uid}-layout`, payload: `${uid}-payload`, sensor: `${uid}-sensor`,
     calibration: `${uid}-calibration`, launch: `${uid}-launch`, title: `${uid}-title`, notes: `${uid}-notes`, files: `${uid}-files`,
-    launchHint: `${uid}-launch-hint`, previewFile: `${uid}-preview-file`,
+    launchHint: `${uid}-launch-hint`, launchZone: `${uid}-launch-zone`, previewFile: `${uid}-preview-file`,
   };
   const temperatureUnit = layoutTemperatureUnit(selectedLayout);
   const rawTemperature = temperatureUnit === "counts" || temperatureUnit === "V" || temperatureUnit === "mV";
@@ -316,9 +336,20 @@ export function UploadForm({ choices, maxUploadMb }: { choices: UploadChoices; m
               </div>
             )}
             <div className="field">
-              <label htmlFor={ids.launch}>Launch time (UTC)</label>
+              <label htmlFor={ids.launch}>Launch time ({launchZone === "UTC" ? "UTC" : `local time in ${launchZone}`})</label>
               <input id={ids.launch} type="datetime-local" step={1} value={launchAt} onChange={(e) => setLaunchAt(e.target.value)} aria-describedby={ids.launchHint} />
-              <span id={ids.launchHint} className="hint">Needed only when the file&apos;s time column has no date (elapsed seconds or clock times). Files with ISO date-times give their own launch time.</span>
+              <select id={ids.launchZone} aria-label="Time zone of the launch time" value={launchZone} onChange={(e) => setLaunchZoneChoice(e.target.value)}>
+                {launchZoneOptions.map((zone) => (
+                  <option key={zone} value={zone}>
+                    {zone === "UTC" ? "typed in UTC" : `typed in ${zone}${zone === selectedSite?.timeZone ? " (the site's zone)" : ""}${zone === clockZone ? " (the logger clock's zone)" : ""}`}
+                  </option>
+                ))}
+              </select>
+              <span id={ids.launchHint} className="hint">
+                {launchInstant ? `Sent as ${launchInstant}. ` : ""}
+                Needed when the file&apos;s time column has no date (elapsed seconds or clock times); for clock times it also dates the file,
+                and a launch more than 30 minutes from what the file&apos;s clock shows is flagged on the flight. Files with full date-times give their own launch time.
+              </span>
             </div>
           </div>
           {previewFile && (

@@ -61,7 +61,7 @@ test("no demo flight looks like a faulty sensor or an implausible altitude colum
       (c) => Date.parse(c.validFromUtc) <= launchMs && (c.validToUtc === null || launchMs < Date.parse(c.validToUtc)),
     );
     if (!layout || !site || !calibration) throw new Error(`incomplete demo flight ${flight.key}`);
-    const parsed = await parseLoggerFile(flight.content, layout, { fileName: flight.fileName, mode: "strict", clockDateUtc: new Date(launchMs) });
+    const parsed = await parseLoggerFile(flight.content, layout, { fileName: flight.fileName, mode: "strict", clockAnchorUtc: new Date(launchMs) });
     const analysis = analyseFlight({ samples: parsed.samples, calibration: calibration.spec, site });
     for (const flag of analysis.qc.flags) if (faultFlags.includes(flag)) flagged.push(`${flight.key}: ${flag}`);
   }
