@@ -23,7 +23,7 @@ const bandsText = (bands: AnalysisParameters["fixedBandsM"]) => bands.map((b) =>
 
 /** "0-2000 agl" → { baseM: 0, topM: 2000, reference: "agl" }; a missing reference is left to the schema (msl). */
 function parseBand(text: string): { baseM: number; topM: number; reference?: string } {
-  const match = /^(.*?)\s*\b(agl|msl|[a-z]+)$/i.exec(text);
+  const match = /^(.*?\d)\s*([a-z]+)$/i.exec(text);
   const limits = match ? (match[1] ?? "") : text;
   const [baseM, topM] = limits.split(/\s*(?:-|–|to)\s*/).map(numberFrom);
   return { baseM: baseM ?? Number.NaN, topM: topM ?? Number.NaN, ...(match ? { reference: (match[2] ?? "").toLowerCase() } : {}) };
