@@ -121,6 +121,18 @@ export function describeLayerKind(kind: string): string {
   return LAYER_KIND_WORDS[kind] ?? kind;
 }
 
+/**
+ * A layer's name, with a band's limits as asked and their reference: "Fixed band 0–2000 m AGL (ground 1610 m MSL)".
+ * Bands stored before references existed have none and read as above sea level.
+ */
+export function describeLayer(layer: { kind: string; bandReference: string | null; bandBaseM: number | null; bandTopM: number | null; groundElevationM: number | null }): string {
+  const name = describeLayerKind(layer.kind);
+  if (layer.kind !== "band" || layer.bandBaseM === null || layer.bandTopM === null) return name;
+  const reference = (layer.bandReference ?? "msl").toUpperCase();
+  const ground = layer.bandReference === "agl" && layer.groundElevationM !== null ? ` (ground ${fixed(layer.groundElevationM, 0)} m MSL)` : "";
+  return `${name} ${fixed(layer.bandBaseM, 0)}–${fixed(layer.bandTopM, 0)} m ${reference}${ground}`;
+}
+
 const TROPOPAUSE_STATUS_WORDS: Record<string, string> = {
   found: "found",
   undetermined: "undetermined (a candidate could not be confirmed)",

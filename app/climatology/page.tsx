@@ -6,6 +6,7 @@ import { listSchoolsAndSites } from "@/lib/query/setup";
 import { getViewer } from "@/app/_lib/viewer";
 import { formatNumber } from "@/app/_lib/format";
 import { ClimatologyQueryForm, METRIC_CHOICES } from "@/app/_components/climatology/query-form";
+import { HEIGHT_REFERENCE_WORDS } from "@/lib/analysis/band-coverage";
 import { ClaimResult, GroupFlights, GroupStatisticsTable, digitsForUnit } from "@/app/_components/climatology/result-tables";
 import { GroupBoxPlot, GroupProfiles, MetricScatter } from "@/app/_components/climatology/climatology-charts";
 import { buildClimatologyCharts } from "@/app/_components/climatology/chart-data";
@@ -73,7 +74,7 @@ export default async function ClimatologyPage({ searchParams }: { searchParams: 
 
       {result && parsed.ok && charts && (
         <section aria-labelledby="result-heading">
-          <h2 id="result-heading">{METRIC_CHOICES[parsed.query.metric]}{result.band ? `: ${formatNumber(result.band.baseM / 1000, 1)}–${formatNumber(result.band.topM / 1000, 1)} km, ${result.band.phase}` : ""}</h2>
+          <h2 id="result-heading">{METRIC_CHOICES[parsed.query.metric]}{result.band ? `: ${formatNumber(result.band.baseM / 1000, 1)}–${formatNumber(result.band.topM / 1000, 1)} km ${HEIGHT_REFERENCE_WORDS[result.band.reference]} (${result.band.reference.toUpperCase()}), ${result.band.phase}` : ""}</h2>
           <p role="status" className="muted">
             {result.overall.n} flight{result.overall.n === 1 ? "" : "s"} in {result.groups.length} group{result.groups.length === 1 ? "" : "s"}
             {result.excludedCount > 0 ? `; ${result.excludedCount} matching flight${result.excludedCount === 1 ? "" : "s"} excluded` : ""}.

@@ -125,8 +125,3 @@ export function bandLevelFigures(inBand: readonly BandLevel[]): BandLevelFigures
     maxStepM,
   };
 }
-
-/** "0–2000 m AGL" for a band as asked. */
-export function describeBand(band: BandSpec): string {
-  return `${band.baseM}–${band.topM} m ${band.reference.toUpperCase()}`;
-}

@@ -2,7 +2,7 @@
  * Layer statistics from binned profile levels: surface-based and elevated inversions, the
  * tropospheric lapse rate, the stratospheric gradient and fixed or caller-chosen altitude bands.
  */
-import { bandLevelFigures, bandRangeMsl, decideBandCoverage, levelsInBand, type BandCoverageReason, type BandSpec, type HeightReference } from "./band-coverage";
+import { BAND_MIN_LEVELS, bandLevelFigures, bandRangeMsl, decideBandCoverage, levelsInBand, type BandCoverageReason, type BandSpec, type HeightReference } from "./band-coverage";
 import { DRY_AIR_SPECIFIC_HEAT_J_PER_KG_K, STANDARD_GRAVITY_M_PER_S2 } from "./constants";
 import { fitOrdinaryLeastSquares, theilSenSlope } from "./regression";
 import { classifyStability, moistAdiabaticLapseRateKPerKm } from "./stability";
@@ -186,7 +186,7 @@ export function computeBandLapseRate(
   const m = (v: number | null | undefined) => Math.round(v ?? Number.NaN);
   const reasons: Record<BandCoverageReason, string> = {
     "no-ground": `the ground elevation is unknown, so the band ${words} has no height above sea level`,
-    "few-levels": `fewer than 3 levels between ${m(range?.baseM)} m and ${m(range?.topM)} m (band ${words})`,
+    "few-levels": `fewer than ${BAND_MIN_LEVELS} levels between ${m(range?.baseM)} m and ${m(range?.topM)} m (band ${words})`,
     "low-end": `the profile does not reach down to ${m(range?.baseM)} m (band ${words}; lowest level ${m(figures.lowestM)} m)`,
     "high-end": `the profile does not reach up to ${m(range?.topM)} m (band ${words}; highest level ${m(figures.highestM)} m)`,
     gap: `a data gap of more than two bins lies inside the band ${words}`,

@@ -295,8 +295,11 @@ function candidateSql(viewer: Viewer, query: ClimatologyQuery, engine: SqlEngine
     FROM "FlightSummary" s JOIN "Flight" f ON f."id" = s."flightId"
     WHERE ${where}`;
   if (!band) return candidates;
+  // MSL limits are the same for every run and stay constants for the planner; AGL limits come from each candidate.
+  const lowM = band.reference === "msl" ? realSql(engine, band.baseM) : raw(`c."bandBaseMslM"`);
+  const highM = band.reference === "msl" ? realSql(engine, band.topM) : raw(`c."bandTopMslM"`);
   // x is the altitude in km from the band middle, which keeps the sums well conditioned.
-  const x = sql`((l."altitudeM" - (c."bandBaseMslM" + c."bandTopMslM") / 2.0) / 1000.0)`;
+  const x = sql`((l."altitudeM" - (${lowM} + ${highM}) / 2.0) / 1000.0)`;
   // The candidates are materialised and drive the join (CROSS JOIN fixes the order on SQLite), so each
   // run's in-band levels are read by a range search on the (runId, phase, altitudeM) index.
   return sql`WITH c AS MATERIALIZED (${candidates}),
@@ -305,7 +308,7 @@ function candidateSql(viewer: Viewer, query: ClimatologyQuery, engine: SqlEngine
         SUM(${x} * l."temperatureK") AS sxy, MIN(l."altitudeM") AS lo, MAX(l."altitudeM") AS hi, MAX(l."topM" - l."baseM") AS bin,
         MIN(l."baseM") AS "lowBase", MAX(l."baseM") AS "highBase"
       FROM c CROSS JOIN "ProfileLevel" l
-      WHERE l."runId" = c."runId" AND l."phase" = ${query.phase} AND l."altitudeM" >= c."bandBaseMslM" AND l."altitudeM" <= c."bandTopMslM"
+      WHERE l."runId" = c."runId" AND l."phase" = ${query.phase} AND l."altitudeM" >= ${lowM} AND l."altitudeM" <= ${highM}
       GROUP BY l."runId"
     )
     SELECT c.*, sums.n AS "bandN", sums.sx AS "bandSx", sums.sy AS "bandSy", sums.sxx AS "bandSxx", sums.sxy AS "bandSxy",

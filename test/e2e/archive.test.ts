@@ -114,7 +114,7 @@ describe("archive", () => {
     await page.waitForURL(/\/flights\/[^/?]+$/);
     expect((await page.getByRole("heading", { level: 1 }).innerText()).trim()).toBe(title);
 
-    const tropopause = (await factValue(page, "First tropopause").innerText()).trim();
+    const tropopause = (await factValue(page, "First tropopause (MSL)").innerText()).trim();
     expect(tropopause).toMatch(/^\d+\.\d{2} km\b/);
     // [D] the archive row and the flight page read the same stored summary
     expect(firstNumber(tropopause)).toBe(listedKm);

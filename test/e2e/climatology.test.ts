@@ -51,8 +51,9 @@ describe("climatology", () => {
     const { page } = session;
     await page.goto("/climatology");
     await page.getByLabel("Metric", { exact: true }).selectOption("band-lapse-rate");
-    await page.getByLabel("Band base (km above sea level)").fill("1");
-    await page.getByLabel("Band top (km above sea level)").fill("6");
+    await page.getByLabel("Band base (km)").fill("1");
+    await page.getByLabel("Band top (km)").fill("6");
+    await page.getByLabel("Band heights measured from").selectOption("msl");
     await page.getByRole("radio", { name: "Group A differs from group B" }).check();
     await page.getByLabel("Claim direction", { exact: true }).selectOption("greater");
     await page.getByLabel("Group A", { exact: true }).fill("summer");

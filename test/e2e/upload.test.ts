@@ -107,7 +107,7 @@ describe("upload through the web form", () => {
     await expect.poll(() => page.getByRole("heading", { level: 1 }).innerText()).toMatch(/^Wattlegrove Paddock\b/);
     expect((await factValue(page, "School").innerText()).trim()).toBe(SCHOOL);
     expect((await factValue(page, "Launch (UTC)").innerText()).trim()).toBe("2022-11-15 07:30 UTC");
-    const tropopause = (await factValue(page, "First tropopause").innerText()).trim();
+    const tropopause = (await factValue(page, "First tropopause (MSL)").innerText()).trim();
     expect(tropopause).toMatch(/^\d+\.\d{2} km\b/);
     // [D] makeFlightFile puts the tropopause at 11 000 m; the lapse-rate (WMO) definition finds it
     // within a bin or two of the kink, well inside 0.5 km

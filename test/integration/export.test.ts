@@ -161,6 +161,21 @@ describe.each(testEngines())("export on %s", (engine) => {
     }
   });
 
+  test("layer columns name the reference of every band height: asked above ground or sea level, fitted and stored above sea level", async () => {
+    const output = await run(LOCAL_VIEWER, { source: "flight", flight: flights.public, format: "csv", table: "layers" });
+    const bytes = await collect(output.body);
+    const header = (text(bytes).split("\n")[0] ?? "").split(",");
+    for (const name of ["baseM", "topM", "fittedBaseM", "fittedTopM", "bandReference", "bandBaseAglM", "bandTopAglM", "bandBaseMslM", "bandTopMslM", "groundElevationM"]) expect(header).toContain(name);
+    const bands = csvRecords(bytes).filter((r) => r.kind === "band" && r.phase === "ascent");
+    // [D] the test site lies at 200 m; the default bands are 0–2000 m AGL, 2000–5000 and 5000–10000 m MSL
+    const agl = bands.find((r) => r.bandReference === "agl");
+    expect(agl).toMatchObject({ bandBaseAglM: "0", bandTopAglM: "2000", bandBaseMslM: "", bandTopMslM: "", groundElevationM: "200", baseM: "200", topM: "2200" });
+    expect(Number(agl?.fittedBaseM)).toBeGreaterThanOrEqual(200);
+    expect(Number(agl?.fittedBaseM)).toBeLessThanOrEqual(300);
+    const msl = bands.filter((r) => r.bandReference === "msl").map((r) => [r.bandBaseMslM, r.bandTopMslM, r.bandBaseAglM, r.groundElevationM]);
+    expect(msl).toEqual([["2000", "5000", "", ""], ["5000", "10000", "", ""]]);
+  });
+
   test("raw files travel byte for byte, with their SHA-256", async () => {
     const output = await run(LOCAL_VIEWER, { source: "flight", flight: flights.public, format: "package", raw: "yes" });
     const files = unzipSync(await collect(output.body));

@@ -1,4 +1,5 @@
 import Link from "next/link";
+import { HEIGHT_REFERENCES, type HeightReference } from "@/lib/analysis/band-coverage";
 import { CLIMATOLOGY_GROUPINGS, CLIMATOLOGY_METRICS, HOUR_BIN_WIDTHS, type ClimatologyGrouping, type ClimatologyMetric } from "@/lib/query/climatology-params";
 
 interface Option {
@@ -16,6 +17,11 @@ export const METRIC_CHOICES: Record<ClimatologyMetric, string> = {
   "surface-inversion-strength": "Surface-inversion strength (K)",
   "surface-temperature": "Surface temperature (K)",
   "max-altitude": "Maximum altitude (km)",
+};
+
+export const BAND_REFERENCE_CHOICES: Record<HeightReference, string> = {
+  agl: "Above ground level (AGL)",
+  msl: "Above mean sea level (MSL)",
 };
 
 const GROUPING_CHOICES: Record<ClimatologyGrouping, string> = {
@@ -140,8 +146,16 @@ export function ClimatologyQueryForm({
             </select>
             <FieldErrors errors={errors.metric} id="c-metric-error" />
           </div>
-          <TextField name="bandBaseKm" label="Band base (km above sea level)" type="number" step="0.1" values={values} errors={errors} hint="For the band lapse rate only." />
-          <TextField name="bandTopKm" label="Band top (km above sea level)" type="number" step="0.1" values={values} errors={errors} />
+          <TextField name="bandBaseKm" label="Band base (km)" type="number" step="0.1" values={values} errors={errors} hint="For the band lapse rate only." />
+          <TextField name="bandTopKm" label="Band top (km)" type="number" step="0.1" values={values} errors={errors} />
+          <div className="field">
+            <label htmlFor="c-bandReference">Band heights measured from</label>
+            <select id="c-bandReference" name="bandReference" defaultValue={values.bandReference ?? "msl"} aria-describedby="c-bandReference-hint">
+              {HEIGHT_REFERENCES.map((r) => <option key={r} value={r}>{BAND_REFERENCE_CHOICES[r]}</option>)}
+            </select>
+            <span className="hint" id="c-bandReference-hint">Above ground: each flight&apos;s own site elevation (a boundary-layer band such as 0–2 km). Above sea level: the same heights at every site (free-troposphere comparisons such as 2–7 km).</span>
+            <FieldErrors errors={errors.bandReference} id="c-bandReference-error" />
+          </div>
           <div className="field">
             <label htmlFor="c-phase">Profile phase</label>
             <select id="c-phase" name="phase" defaultValue={values.phase ?? "ascent"} aria-describedby="c-phase-hint">

@@ -19,7 +19,15 @@ const NUMBER_FIELDS: Array<{ key: NumberKey; label: string; hint: string }> = [
   { key: "inversionMinStrengthK", label: "Smallest inversion strength (K)", hint: "weaker inversions are treated as noise" },
 ];
 
-const bandsText = (bands: AnalysisParameters["fixedBandsM"]) => bands.map((b) => `${b.baseM}-${b.topM}`).join(", ");
+const bandsText = (bands: AnalysisParameters["fixedBandsM"]) => bands.map((b) => `${b.baseM}-${b.topM} ${b.reference}`).join(", ");
+
+/** "0-2000 agl" → { baseM: 0, topM: 2000, reference: "agl" }; a missing reference is left to the schema (msl). */
+function parseBand(text: string): { baseM: number; topM: number; reference?: string } {
+  const match = /^(.*?\d)\s*([a-z]+)$/i.exec(text);
+  const limits = match ? (match[1] ?? "") : text;
+  const [baseM, topM] = limits.split(/\s*(?:-|–|to)\s*/).map(numberFrom);
+  return { baseM: baseM ?? Number.NaN, topM: topM ?? Number.NaN, ...(match ? { reference: (match[2] ?? "").toLowerCase() } : {}) };
+}
 
 /** The program's analysis parameters; every run records the values it used. */
 export function ParametersForm({ initial, defaults }: { initial: AnalysisParameters; defaults: AnalysisParameters }) {
@@ -39,10 +47,7 @@ export function ParametersForm({ initial, defaults }: { initial: AnalysisParamet
   async function submit(event: FormEvent) {
     event.preventDefault();
     setBusy(true);
-    const bands = v.bands.split(/[,;\n]+/).map((s) => s.trim()).filter(Boolean).map((s) => {
-      const [baseM, topM] = s.split(/\s*(?:-|–|to)\s*/).map(numberFrom);
-      return { baseM: baseM ?? Number.NaN, topM: topM ?? Number.NaN };
-    });
+    const bands = v.bands.split(/[,;\n]+/).map((s) => s.trim()).filter(Boolean).map(parseBand);
     const result = await saveProgramParameters({
       ...Object.fromEntries(NUMBER_FIELDS.map((f) => [f.key, numberFrom(v[f.key])])),
       lagCorrection: { enabled: v.lagEnabled, timeConstantS: numberFrom(v.lagTimeConstantS) },
@@ -70,7 +75,7 @@ export function ParametersForm({ initial, defaults }: { initial: AnalysisParamet
         <Field id={`${uid}-tau`} label="Lag time constant (s)" hint="used when the lag correction is on, 0–120" error={errors["lagCorrection.timeConstantS"]}>
           <input id={`${uid}-tau`} type="number" step="any" value={v.lagTimeConstantS} onChange={(e) => setV({ ...v, lagTimeConstantS: e.target.value })} />
         </Field>
-        <Field id={`${uid}-bands`} label="Fixed altitude bands (m above sea level)" wide hint={`base-top pairs separated by commas; default ${bandsText(defaults.fixedBandsM)}`} error={Object.entries(errors).filter(([k]) => k.startsWith("fixedBandsM")).flatMap(([, m]) => m)}>
+        <Field id={`${uid}-bands`} label="Fixed altitude bands (m)" wide hint={`base-top pairs with their reference, separated by commas: agl (above the site's ground) or msl (above mean sea level; the default when left out); default ${bandsText(defaults.fixedBandsM)}`} error={Object.entries(errors).filter(([k]) => k.startsWith("fixedBandsM")).flatMap(([, m]) => m)}>
           <input id={`${uid}-bands`} type="text" value={v.bands} onChange={(e) => setV({ ...v, bands: e.target.value })} />
         </Field>
       </div>

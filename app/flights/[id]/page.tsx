@@ -12,7 +12,7 @@ import { getViewer } from "@/app/_lib/viewer";
 import { FlightAdminPanel } from "./_components/flight-admin-panel";
 import { buildProfileChartData } from "@/app/_lib/profile-series";
 import {
-  describeCalibration, describeLayerKind, describeStability, describeTropopauseStatus, formatBytes, formatCelsius, formatKelvin,
+  describeCalibration, describeLayer, describeStability, describeTropopauseStatus, formatBytes, formatCelsius, formatKelvin,
   formatKm, formatLapseRate, formatLocalDateTime, formatMetres, formatNumber, formatSeason, formatStdErr, formatUtc,
 } from "@/app/_lib/format";
 
@@ -87,17 +87,18 @@ export default async function FlightPage({ params }: { params: Params }) {
           <dl className="facts">
             <div><dt>Surface temperature</dt><dd>{formatCelsius(summary.surfaceTemperatureK)} <span className="muted small">({formatKelvin(summary.surfaceTemperatureK, 2)})</span></dd></div>
             <div><dt>Tropospheric lapse rate ± SE</dt><dd>{formatLapseRate(summary.troposphericLapseRateKPerKm, summary.troposphericLapseRateStdErrKPerKm)}</dd></div>
-            <div><dt>First tropopause</dt><dd>{formatKm(summary.tropopauseAltitudeM)}{summary.tropopauseTemperatureK !== null ? `, ${formatCelsius(summary.tropopauseTemperatureK)}` : ""}{summary.tropopausePressureHpa !== null ? `, ${formatNumber(summary.tropopausePressureHpa, 0)} hPa` : ""}</dd></div>
+            <div><dt>First tropopause (MSL)</dt><dd>{formatKm(summary.tropopauseAltitudeM)}{summary.tropopauseTemperatureK !== null ? `, ${formatCelsius(summary.tropopauseTemperatureK)}` : ""}{summary.tropopausePressureHpa !== null ? `, ${formatNumber(summary.tropopausePressureHpa, 0)} hPa` : ""}</dd></div>
             <div><dt>Tropopause status</dt><dd>{describeTropopauseStatus(summary.tropopauseStatus)}</dd></div>
-            <div><dt>Second tropopause</dt><dd>{formatKm(summary.secondTropopauseAltitudeM)}</dd></div>
+            <div><dt>Second tropopause (MSL)</dt><dd>{formatKm(summary.secondTropopauseAltitudeM)}</dd></div>
             <div>
               <dt>Surface inversion</dt>
               <dd>{summary.hasSurfaceInversion ? `${formatMetres(summary.surfaceInversionDepthM)} deep, +${formatNumber(summary.surfaceInversionStrengthK, 1)} K` : "none"}</dd>
             </div>
             <div><dt>Stratospheric lapse rate</dt><dd>{formatLapseRate(summary.stratosphericLapseRateKPerKm)}</dd></div>
-            <div><dt>Launch altitude</dt><dd>{formatMetres(summary.launchAltitudeM)}</dd></div>
-            <div><dt>Burst altitude</dt><dd>{formatKm(summary.burstAltitudeM)}</dd></div>
-            <div><dt>Maximum altitude</dt><dd>{formatKm(summary.maxAltitudeM)}</dd></div>
+            <div><dt>Ground (site elevation, MSL)</dt><dd>{formatMetres(summary.groundElevationM)} <span className="muted small">heights above ground level (AGL) start here</span></dd></div>
+            <div><dt>Launch altitude (MSL)</dt><dd>{formatMetres(summary.launchAltitudeM)}</dd></div>
+            <div><dt>Burst altitude (MSL)</dt><dd>{formatKm(summary.burstAltitudeM)}</dd></div>
+            <div><dt>Maximum altitude (MSL)</dt><dd>{formatKm(summary.maxAltitudeM)}</dd></div>
             <div><dt>Descent recorded</dt><dd>{summary.hasDescent ? "yes" : "no"}</dd></div>
           </dl>
 
@@ -114,12 +115,13 @@ export default async function FlightPage({ params }: { params: Params }) {
           ) : (
             <div className="table-wrap" role="region" aria-label="Layers" tabIndex={0}>
               <table>
-                <caption>Lapse rate is −dT/dz (positive when temperature falls with height). Stability compares it with the dry (Γd) and saturated (Γm) adiabatic rates at the layer&apos;s mean temperature and pressure.</caption>
+                <caption>Heights are metres above mean sea level (MSL); a fixed band names the reference it was asked in (AGL: above the site&apos;s ground). Fitted is the lowest to highest level the fit used. Lapse rate is −dT/dz (positive when temperature falls with height). Stability compares it with the dry (Γd) and saturated (Γm) adiabatic rates at the layer&apos;s mean temperature and pressure.</caption>
                 <thead>
                   <tr>
                     <th scope="col">Layer</th>
                     <th scope="col">Phase</th>
-                    <th scope="col" className="num">Base–top (m)</th>
+                    <th scope="col" className="num">Base–top (m MSL)</th>
+                    <th scope="col" className="num">Fitted (m MSL)</th>
                     <th scope="col" className="num">Lapse rate ± SE (K/km)</th>
                     <th scope="col" className="num">r²</th>
                     <th scope="col" className="num">Theil–Sen (K/km)</th>
@@ -131,10 +133,11 @@ export default async function FlightPage({ params }: { params: Params }) {
                 </thead>
                 <tbody>
                   {layers.map((layer) => (
-                    <tr key={`${layer.phase}-${layer.kind}-${layer.baseM}-${layer.topM}`}>
-                      <td>{describeLayerKind(layer.kind)}</td>
+                    <tr key={`${layer.phase}-${layer.kind}-${layer.bandReference ?? ""}-${layer.baseM}-${layer.topM}`}>
+                      <td>{describeLayer(layer)}</td>
                       <td>{layer.phase}</td>
                       <td className="num">{formatNumber(layer.baseM, 0)}–{formatNumber(layer.topM, 0)}</td>
+                      <td className="num">{layer.fittedBaseM !== null && layer.fittedTopM !== null ? `${formatNumber(layer.fittedBaseM, 0)}–${formatNumber(layer.fittedTopM, 0)}` : "—"}</td>
                       <td className="num">{formatNumber(layer.lapseRateKPerKm, 2)}{layer.lapseRateStdErrKPerKm !== null ? ` ± ${formatStdErr(layer.lapseRateStdErrKPerKm)}` : ""}</td>
                       <td className="num">{formatNumber(layer.rSquared, 3)}</td>
                       <td className="num">{formatNumber(layer.theilSenLapseRateKPerKm, 2)}</td>

@@ -1,6 +1,6 @@
 import { describe, expect, test } from "vitest";
 import {
-  describeCalibration, formatCelsius, formatKm, formatKmValue, formatLapseRate, formatLocalDateTime, formatLocalHour, formatStdErr, formatUtc,
+  describeCalibration, describeLayer, formatCelsius, formatKm, formatKmValue, formatLapseRate, formatLocalDateTime, formatLocalHour, formatStdErr, formatUtc,
 } from "@/app/_lib/format";
 
 describe("display formatting", () => {
@@ -50,5 +50,13 @@ describe("display formatting", () => {
     expect(text).toBe("raw counts → 10-bit ADC (5 V reference, ÷2^N) → linear sensor 10 mV/K, offset 0 V");
     expect(describeCalibration({ input: "celsius", sensor: { kind: "direct" } })).toBe("°C → read directly");
     expect(describeCalibration(null)).toBe("—");
+  });
+});
+
+describe("describeLayer", () => {
+  test("a band says the limits it was asked in and their reference; other layers only their kind", () => {
+    expect(describeLayer({ kind: "band", bandReference: "agl", bandBaseM: 0, bandTopM: 2000, groundElevationM: 1610 })).toBe("Fixed band 0–2000 m AGL (ground 1610 m MSL)");
+    expect(describeLayer({ kind: "band", bandReference: "msl", bandBaseM: 2000, bandTopM: 5000, groundElevationM: null })).toBe("Fixed band 2000–5000 m MSL");
+    expect(describeLayer({ kind: "troposphere", bandReference: null, bandBaseM: null, bandTopM: null, groundElevationM: null })).toBe("Troposphere");
   });
 });
