@@ -10,6 +10,8 @@ const envSchema = z.object({
   LAPSEBANK_SESSION_DAYS: z.coerce.number().positive().default(14),
   NODE_ENV: z.enum(["development", "production", "test"]).default("development"),
   PORT: z.coerce.number().int().positive().default(3000),
+  /** Address `npm start` listens on; unset: 127.0.0.1 while no account exists, else every interface. */
+  LAPSEBANK_HOST: z.string().trim().min(1).optional(),
 });
 
 export type Env = z.infer<typeof envSchema>;
