@@ -31,5 +31,10 @@ describe("server actions from another origin", () => {
     expect(matches("/upload", { "next-action": "abc", "sec-fetch-site": "same-origin" })).toBe(false);
     expect(matches("/api/v1/flights", { "content-type": "multipart/form-data; boundary=x" })).toBe(false);
     expect(matches("/flights", {})).toBe(false);
+    // A plain HTML form names its action in a multipart body, without the header.
+    expect(matches("/account", { "content-type": "multipart/form-data; boundary=x", "sec-fetch-site": "same-site" })).toBe(true);
+    expect(matches("/", { "content-type": "multipart/form-data; boundary=x" })).toBe(true);
+    expect(matches("/account", { "content-type": "multipart/form-data; boundary=x", "sec-fetch-site": "same-origin" })).toBe(false);
+    expect(matches("/api/v1/setup/layouts/preview", { "content-type": "multipart/form-data; boundary=x", "sec-fetch-site": "cross-site" })).toBe(false);
   });
 });
