@@ -10,7 +10,7 @@ export const LOOPBACK_HOST = "127.0.0.1";
 export function chooseListenHost(input: { lapsebankHost: string | undefined; host: string | undefined; accountsExist: boolean }): { host: string | undefined; why: string } {
   const explicit = input.lapsebankHost?.trim();
   if (explicit) return { host: explicit, why: "LAPSEBANK_HOST" };
-  if (!input.accountsExist) return { host: LOOPBACK_HOST, why: "local mode (no accounts yet): this machine only; set LAPSEBANK_HOST to serve others once accounts exist" };
+  if (!input.accountsExist) return { host: LOOPBACK_HOST, why: "local mode, no accounts yet: this machine only; LAPSEBANK_HOST serves other computers" };
   const legacy = input.host?.trim();
   return legacy ? { host: legacy, why: "HOST" } : { host: undefined, why: "accounts exist: every network interface" };
 }
