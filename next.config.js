@@ -12,6 +12,10 @@ const nextConfig = {
   serverExternalPackages: ["better-sqlite3", "pg", "@prisma/adapter-better-sqlite3", "@prisma/adapter-pg", "csv-parse"],
   experimental: {
     serverActions: { bodySizeLimit: `${Math.ceil(maxUploadMb) + 1}mb` },
+    // proxy.ts sees only server-action posts not marked same-origin by the browser (forgeries, and
+    // uploads from browsers without Fetch Metadata); Next buffers what its proxy sees, and past this
+    // size would cut such an upload short.
+    proxyClientMaxBodySize: `${Math.ceil(maxUploadMb) + 1}mb`,
   },
 };
 

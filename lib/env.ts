@@ -28,6 +28,8 @@ const envSchema = z.object({
     }),
   NODE_ENV: z.enum(["development", "production", "test"]).default("development"),
   PORT: z.coerce.number().int().positive().default(3000),
+  /** Address `npm start` listens on; unset: 127.0.0.1 while no account exists, else every interface. */
+  LAPSEBANK_HOST: z.string().trim().optional().transform((value) => value || undefined),
 });
 
 export type Env = z.infer<typeof envSchema>;

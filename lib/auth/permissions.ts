@@ -96,3 +96,14 @@ export function requirePermission(viewer: Viewer, action: Action, target: Target
   const status = refusalStatus(viewer);
   throw new PermissionError(status, status === 401 ? "Sign in first." : `You may not ${action.replace(".", " ")} here.`);
 }
+
+/**
+ * Throws PermissionError (401/403) unless the viewer may do `action` in at least one school (or
+ * program-wide). Routes call it before reading a request body whose school they do not know yet,
+ * so nobody who could never succeed makes the server read their upload.
+ */
+export function requirePermissionSomewhere(viewer: Viewer, action: Action): void {
+  const schoolIds = viewer.kind === "member" ? viewer.memberships.map((m) => m.schoolId) : [];
+  if ([null, ...schoolIds].some((schoolId) => can(viewer, action, { schoolId }))) return;
+  requirePermission(viewer, action, { schoolId: null });
+}

@@ -3,7 +3,8 @@
  *
  *   node lib/cli/app-server.mjs            (npm start runs it after migrations and the build)
  *
- * PORT (default 3000), HOST (default: all interfaces), LAPSEBANK_APP_PROCESSES (default: one per
+ * PORT (default 3000), LAPSEBANK_HOST or HOST (default: all interfaces; `npm start` passes 127.0.0.1
+ * while the install has no accounts, see listen-host.ts), LAPSEBANK_APP_PROCESSES (default: one per
  * CPU core, at most 4, on PostgreSQL; always 1 on SQLite, whose single database file wants one
  * writer process). With more than one, node:cluster forks that many processes that share the
  * listening socket; each runs the Next.js request handler (the documented custom-server API), and
@@ -20,7 +21,7 @@ import { stampPeerAddress } from "./peer-address.mjs";
 process.env.NEXT_TELEMETRY_DISABLED = "1";
 
 const port = Number(process.env.PORT ?? 3000);
-const host = process.env.HOST || undefined;
+const host = process.env.LAPSEBANK_HOST || process.env.HOST || undefined;
 
 function processCount() {
   const url = process.env.DATABASE_URL ?? "file:./data/lapsebank.db";

@@ -187,6 +187,8 @@ async function runRemoteIngest(files: string[], values: Record<string, string | 
   for (const [index, file] of files.entries()) {
     const label = `[${index + 1}/${files.length}] ${file}`;
     const form = new FormData();
+    // Fields first: the server checks the school before it reads the file.
+    for (const [key, value] of Object.entries(fields)) if (value) form.set(key, value);
     try {
       form.set("file", new Blob([readUploadFile(file, getEnv().LAPSEBANK_MAX_UPLOAD_MB * 1048576)]), path.basename(file));
     } catch (error) {
@@ -194,7 +196,6 @@ async function runRemoteIngest(files: string[], values: Record<string, string | 
       failed++;
       continue;
     }
-    for (const [key, value] of Object.entries(fields)) if (value) form.set(key, value);
     try {
       const response = await fetch(`${server}/api/v1/flights`, { method: "POST", body: form, headers: { Authorization: `Bearer ${token}` } });
       const body = (await response.json().catch(() => ({}))) as { flight?: { id: string; url: string }; error?: { code: string; message: string; issues?: Array<{ file: string; line: number | null; column: number | null; message: string }> } };

@@ -3,6 +3,7 @@ import fs from "node:fs";
 import { getDbHandle } from "../db/index.ts";
 import { applyMigrations, redactUrl } from "../db/migrate.ts";
 import { getEnv } from "../env.ts";
+import { chooseListenHost } from "./listen-host.ts";
 import { autoloadDemo } from "../../seed/load.ts";
 
 /**
@@ -31,6 +32,7 @@ async function start(): Promise<void> {
   } else if (demo.reason === "not-sqlite" && (await db.flight.count()) === 0) {
     console.log("PostgreSQL database: no demo loaded (run `npm run lapsebank -- demo` to load the invented demo archive)");
   }
+  const listen = chooseListenHost({ lapsebankHost: env.LAPSEBANK_HOST, host: process.env.HOST, accountsExist: (await db.user.count()) > 0 });
   await db.$disconnect();
 
   if (buildIsStale() || process.env.LAPSEBANK_REBUILD === "1") {
@@ -38,10 +40,14 @@ async function start(): Promise<void> {
     const build = spawnSync("node_modules/.bin/next", ["build"], { stdio: "inherit" });
     if (build.status !== 0) process.exit(build.status ?? 1);
   }
-  console.log(`Serving Lapsebank on http://localhost:${env.PORT}`);
+  console.log(`Serving Lapsebank on http://${listen.host ?? "localhost"}:${env.PORT} (${listen.why})`);
   // A plain Node process of its own (no TypeScript loader, none of this process's memory); on
   // PostgreSQL it runs one app process per core (lib/cli/app-server.mjs).
-  const server = spawn(process.execPath, ["lib/cli/app-server.mjs"], { stdio: "inherit", env: { ...process.env, PORT: String(env.PORT) } });
+  const serverEnv: NodeJS.ProcessEnv = { ...process.env, PORT: String(env.PORT) };
+  delete serverEnv.HOST;
+  if (listen.host) serverEnv.LAPSEBANK_HOST = listen.host;
+  else delete serverEnv.LAPSEBANK_HOST;
+  const server = spawn(process.execPath, ["lib/cli/app-server.mjs"], { stdio: "inherit", env: serverEnv });
   for (const signal of ["SIGINT", "SIGTERM"] as const) process.on(signal, () => server.kill(signal));
   server.on("exit", (code) => process.exit(code ?? 0));
 }

@@ -43,13 +43,13 @@ describe("API error shape", () => {
     const original = console.error;
     console.error = () => undefined;
     try {
-      const crash = await withErrors(async () => { throw new Error("boom"); })();
+      const crash = await withErrors(async () => { throw new Error("boom"); })(new Request("http://localhost/api/v1/x"));
       expect(crash.status).toBe(500);
       expect((await crash.json()).error.code).toBe("internal");
     } finally {
       console.error = original;
     }
-    const failed = await withErrors(async () => { throw new IngestFailure("too-large", [issue("too-large")]); })();
+    const failed = await withErrors(async () => { throw new IngestFailure("too-large", [issue("too-large")]); })(new Request("http://localhost/api/v1/x"));
     expect(failed.status).toBe(413);
     expect((await jsonError(404, "not-found", "x").json()).error).toEqual({ code: "not-found", message: "x" });
   });

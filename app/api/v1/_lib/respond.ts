@@ -4,6 +4,8 @@ import { publicOrigin } from "@/lib/auth/trusted-proxy";
 import { getEnv } from "@/lib/env";
 import type { z } from "zod";
 import { IngestFailure, type IngestIssue } from "@/lib/ingest";
+import { RequestBodyError } from "@/lib/http/request-body";
+import { hasBearerToken, isSameOriginRequest, SAFE_METHODS } from "@/lib/http/same-origin";
 
 /** The one error shape of every /api/v1 response. */
 export interface ApiErrorBody {
@@ -51,14 +53,24 @@ export function ingestFailureResponse(failure: IngestFailure): Response {
   });
 }
 
-/** Wraps a handler so an unexpected error still answers in the one error shape (details go to the server log). */
-export function withErrors<A extends unknown[]>(handler: (...args: A) => Promise<Response>): (...args: A) => Promise<Response> {
-  return async (...args: A) => {
+/**
+ * Wraps a handler so an unexpected error still answers in the one error shape (details go to the
+ * server log). Writes that do not carry an API token (a browser's session cookie, or nothing at all
+ * in local mode) must come from one of our own pages: another site or another port of this host
+ * gets 403 before the handler runs (see lib/http/same-origin.ts). Token writes are left as they are.
+ */
+export function withErrors<C extends unknown[]>(handler: (request: Request, ...context: C) => Promise<Response>): (request: Request, ...context: C) => Promise<Response> {
+  return async (request: Request, ...context: C) => {
     try {
-      return await handler(...args);
+      if (!SAFE_METHODS.has(request.method) && !hasBearerToken(request.headers) && !isSameOriginRequest(request.headers, request.url)) {
+        await request.body?.cancel().catch(() => undefined);
+        return jsonError(403, "cross-origin", "This request came from another site; send it from Lapsebank's own pages, or with an API token");
+      }
+      return await handler(request, ...context);
     } catch (error) {
       if (error instanceof IngestFailure) return ingestFailureResponse(error);
       if (error instanceof PermissionError) return jsonError(error.status, error.status === 401 ? "unauthenticated" : "forbidden", error.message);
+      if (error instanceof RequestBodyError) return jsonError(error.status, error.code, error.message);
       console.error("[api/v1]", error);
       return jsonError(500, "internal", "Something went wrong on the server; the error has been logged");
     }

@@ -4,7 +4,8 @@ import { ingestFlightFile } from "@/lib/ingest";
 import { getDb } from "@/lib/db";
 import { getEnv } from "@/lib/env";
 import { getViewer } from "@/app/_lib/viewer";
-import { requirePermission } from "@/lib/auth/permissions";
+import { requirePermission, requirePermissionSomewhere } from "@/lib/auth/permissions";
+import { readMultipartBody } from "@/lib/http/request-body";
 import { absoluteUrl, jsonError, jsonOk, validationError, withErrors } from "../_lib/respond";
 
 export const runtime = "nodejs";
@@ -20,33 +21,25 @@ export const GET = withErrors(async (request: Request) => {
   });
 });
 
-/** POST /api/v1/flights (multipart/form-data): `file` plus the upload metadata fields. */
+/**
+ * POST /api/v1/flights (multipart/form-data): `file` plus the upload metadata fields. Who is asking
+ * is settled before any of the body is read; the body is streamed with a byte limit
+ * (LAPSEBANK_MAX_UPLOAD_MB) into one buffer. Send the metadata fields before the file and a
+ * school you may not upload to is refused before the file is read.
+ */
 export const POST = withErrors(async (request: Request) => {
-  const maxBytes = getEnv().LAPSEBANK_MAX_UPLOAD_MB * 1024 * 1024;
-  const declared = Number(request.headers.get("content-length") ?? "0");
-  // Multipart framing adds a little; refuse early only when the body is clearly over the limit.
-  if (declared > maxBytes + 64 * 1024) {
-    return jsonError(413, "too-large", `The upload is ${(declared / 1048576).toFixed(1)} MB; the limit is ${getEnv().LAPSEBANK_MAX_UPLOAD_MB} MB per file`);
-  }
-  const contentType = request.headers.get("content-type") ?? "";
-  if (!contentType.startsWith("multipart/form-data")) {
-    return jsonError(400, "invalid-request", "Send multipart/form-data with a `file` field and the metadata fields (schoolId, siteId, layoutId, …)");
-  }
-  let form: FormData;
-  try {
-    form = await request.formData();
-  } catch {
-    return jsonError(400, "invalid-request", "The multipart body could not be read");
-  }
-  const file = form.get("file");
-  if (!(file instanceof File)) return jsonError(400, "invalid-request", "The `file` field is missing or is not a file");
-  const metadata: Record<string, string> = {};
-  for (const [key, value] of form.entries()) {
-    if (key !== "file" && typeof value === "string") metadata[key] = value;
-  }
   const viewer = await getViewer();
+  requirePermissionSomewhere(viewer, "flight.upload");
+  const { fields: metadata, file } = await readMultipartBody(request, {
+    fileField: "file",
+    maxFileBytes: getEnv().LAPSEBANK_MAX_UPLOAD_MB * 1024 * 1024,
+    beforeFile: (fields) => {
+      if (fields.schoolId !== undefined) requirePermission(viewer, "flight.upload", { schoolId: fields.schoolId });
+    },
+  });
+  if (!file) return jsonError(400, "invalid-request", "The `file` field is missing or is not a file");
   requirePermission(viewer, "flight.upload", { schoolId: metadata.schoolId ?? null });
-  const bytes = new Uint8Array(await file.arrayBuffer());
+  const bytes = file.bytes;
   const actor = viewer.kind === "member" ? { userId: viewer.userId, label: `api (${viewer.email ?? viewer.userId})` } : { userId: null, label: "api" };
   const result = await ingestFlightFile(getDb(), { file: { name: file.name || "upload.txt", bytes }, metadata, actor });
   const detail = await getFlight(viewer, result.flightId);

@@ -1,22 +1,23 @@
 import "server-only";
 import type { z } from "zod";
-import { can, refusalStatus, type Action } from "@/lib/auth/permissions";
+import { can, refusalStatus, requirePermissionSomewhere, type Action } from "@/lib/auth/permissions";
+import { readJsonBody } from "@/lib/http/request-body";
 import { readingViewer } from "@/lib/auth/visibility";
 import { OverlappingCalibrationError } from "@/lib/ingest";
 import { CalibrationFitError, SetupConflictError } from "@/lib/ingest/setup-more";
 import { getViewer } from "@/app/_lib/viewer";
 import { jsonError, validationError } from "../../_lib/respond";
 
-/** Reads a JSON body and validates it with the one shared schema; a Response when it does not validate. */
+/**
+ * Reads a JSON body and validates it with the one shared schema; a Response when it does not
+ * validate. Before a byte is read the viewer must be someone who may edit some school's setup
+ * (401/403 otherwise; the route still checks the school itself afterwards); the body must be
+ * `application/json` (415) and at most MAX_JSON_BODY_BYTES (413).
+ */
 export async function readJson<S extends z.ZodType>(request: Request, schema: S): Promise<{ data: z.output<S> } | { response: Response }> {
-  let body: unknown;
-  try {
-    body = await request.json();
-  } catch {
-    return { response: jsonError(400, "invalid-request", "Send a JSON body (Content-Type: application/json)") };
-  }
-  const parsed = schema.safeParse(body);
-  return parsed.success ? { data: parsed.data } : { response: validationError(parsed.error) };
+  requirePermissionSomewhere(await getViewer(), "setup.edit");
+  const parsed = await readJsonBody(request, schema);
+  return parsed.success ? { data: parsed.data as z.output<S> } : { response: validationError(parsed.error) };
 }
 
 /** Null when the viewer may act on the school's setup (or on the program when schoolId is null), else the 401/403 answer. */

@@ -1,3 +1,7 @@
+import { getViewer } from "@/app/_lib/viewer";
+import { requirePermissionSomewhere } from "@/lib/auth/permissions";
+import { getEnv } from "@/lib/env";
+import { readMultipartBody } from "@/lib/http/request-body";
 import { loggerLayoutSpecSchema } from "@/lib/ingest/layout";
 import { LAYOUT_PREVIEW_BYTES, previewLayoutSample } from "@/lib/ingest/setup-more";
 import { jsonError, jsonOk, validationError, withErrors } from "../../../_lib/respond";
@@ -7,24 +11,24 @@ export const runtime = "nodejs";
 /**
  * POST /api/v1/setup/layouts/preview (multipart/form-data: `file`, `spec` as JSON): reads the first
  * 64 KB of the sample with the layout and returns the rows and every problem with line and column.
+ * For people who may edit some school's setup (anyone in local mode); only the first 64 KB of the
+ * sample is kept, the rest is counted against the upload limit and dropped.
  */
 export const POST = withErrors(async (request: Request) => {
-  let form: FormData;
-  try {
-    form = await request.formData();
-  } catch {
-    return jsonError(400, "invalid-request", "Send multipart/form-data with a `file` and a `spec` (JSON) field");
-  }
-  const file = form.get("file");
-  if (!(file instanceof File)) return jsonError(400, "invalid-request", "file: attach a sample logger file");
+  requirePermissionSomewhere(await getViewer(), "setup.edit");
+  const { fields, file } = await readMultipartBody(request, {
+    fileField: "file",
+    maxFileBytes: getEnv().LAPSEBANK_MAX_UPLOAD_MB * 1024 * 1024,
+    keepFileBytes: LAYOUT_PREVIEW_BYTES + 1,
+  });
+  if (!file) return jsonError(400, "invalid-request", "file: attach a sample logger file");
   let specJson: unknown;
   try {
-    specJson = JSON.parse(String(form.get("spec") ?? ""));
+    specJson = JSON.parse(fields.spec ?? "");
   } catch {
     return jsonError(400, "invalid-request", "spec: send the layout as JSON");
   }
   const spec = loggerLayoutSpecSchema.safeParse(specJson);
   if (!spec.success) return validationError(spec.error);
-  const bytes = new Uint8Array(await file.slice(0, LAYOUT_PREVIEW_BYTES + 1).arrayBuffer());
-  return jsonOk({ preview: await previewLayoutSample(bytes, spec.data, file.name || "sample") });
+  return jsonOk({ preview: await previewLayoutSample(file.bytes, spec.data, file.name || "sample") });
 });
