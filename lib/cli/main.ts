@@ -25,6 +25,8 @@ Usage: npm run lapsebank -- <command> [options]
 Commands:
   migrate                      apply the checked-in migrations to DATABASE_URL
   demo [--yes]                 rebuild the demo archive (wipes the database first; asks for --yes)
+  reset [--yes]                delete every row of the database, leaving it empty (asks for --yes);
+                               also the way out of an interrupted restore
   ingest <files...>            upload logger files through the same pipeline as the web
       --school ID --site ID --layout ID [--sensor ID] [--payload ID] [--calibration ID]
       [--launch ISO-UTC] [--visibility school|program|public] [--lenient] [--title TEXT]
@@ -38,9 +40,21 @@ ${EXPORT_HELP}
 
 DATABASE_URL chooses the database: file:./data/lapsebank.db (default, SQLite) or postgres://...`;
 
+/** Commands that read or write the archive: refused while an interrupted restore is unresolved. */
+const SERVING_COMMANDS = new Set(["demo", "ingest", "backup", "reprocess", "admin"]);
+
 async function main(argv: string[]): Promise<number> {
   const [command, ...rest] = argv;
   const url = getEnv().DATABASE_URL;
+  if (command !== undefined && SERVING_COMMANDS.has(command)) {
+    // `export` runs the same check in its worker (export-commands.ts).
+    const { checkBeforeServing } = await import("./preflight.ts");
+    const problem = await checkBeforeServing((await getDbHandle()).db);
+    if (problem) {
+      console.error(problem);
+      return 1;
+    }
+  }
   switch (command) {
     case "migrate":
       applyMigrations(url);
@@ -48,6 +62,8 @@ async function main(argv: string[]): Promise<number> {
       return 0;
     case "demo":
       return runDemo(rest, url);
+    case "reset":
+      return runReset(rest, url);
     case "ingest":
       return runIngest(rest);
     case "export":
@@ -90,6 +106,20 @@ async function runDemo(args: string[], url: string): Promise<number> {
   console.log(`Demo archive: ${report.schools} schools, ${report.sites} sites, ${report.flights} flights in ${((Date.now() - started) / 1000).toFixed(1)} s`);
   for (const f of report.failures) console.error(`  failed ${f.fileName}: ${f.message}`);
   return report.failures.length ? 1 : 0;
+}
+
+async function runReset(args: string[], url: string): Promise<number> {
+  const { values } = parseArgs({ args, options: { yes: { type: "boolean", default: false } } });
+  const { db } = await getDbHandle();
+  if (!values.yes) {
+    const [flights, markers] = await Promise.all([db.flight.count(), db.restoreMarker.count()]);
+    console.error(`\`reset --yes\` deletes every row of ${redactUrl(url)} (${flights} flights${markers ? ", and the mark of an interrupted restore" : ""}), leaving an empty database for \`restore\` or \`npm start\`.`);
+    return 1;
+  }
+  const { resetDatabase } = await import("./reset.ts");
+  await resetDatabase(db);
+  console.log(`${redactUrl(url)} is empty.`);
+  return 0;
 }
 
 async function runIngest(args: string[]): Promise<number> {

@@ -4,10 +4,12 @@ import { getDbHandle } from "../db/index.ts";
 import { applyMigrations, redactUrl } from "../db/migrate.ts";
 import { getEnv } from "../env.ts";
 import { loadDemoProgram } from "../../seed/load.ts";
+import { checkBeforeServing } from "./preflight.ts";
 
 /**
- * `npm start`: apply migrations, load the demo archive when the database is empty, build the
- * app when there is no production build yet, then serve it on PORT (default 3000).
+ * `npm start`: apply migrations, refuse a database an interrupted restore left, load the demo archive
+ * when the database is empty, build the app when there is no production build yet, then serve it on
+ * PORT (default 3000).
  */
 async function start(): Promise<void> {
   // Nothing leaves a school's server: the build and the app processes inherit this.
@@ -16,6 +18,12 @@ async function start(): Promise<void> {
   console.log(`Database: ${redactUrl(env.DATABASE_URL)}`);
   applyMigrations(env.DATABASE_URL);
   const { db } = getDbHandle();
+  const problem = await checkBeforeServing(db);
+  if (problem) {
+    console.error(problem);
+    await db.$disconnect();
+    process.exit(1);
+  }
   if ((await db.school.count()) === 0 && process.env.LAPSEBANK_SKIP_DEMO !== "1") {
     console.log("The database is empty: loading the demo archive (invented schools and flights)…");
     const report = await loadDemoProgram(db, {
