@@ -251,4 +251,27 @@ describe.each(testEngines())("restore on %s is all or nothing", (engine) => {
     expect(await checkBeforeServing(target.db)).toBeNull();
     expect(await target.db.profileLevel.count()).toBe(allLines.length);
   }, 240_000);
+
+  test("after an interrupted restore, export refuses and `reset --yes` (not plain `reset`) clears the database", async () => {
+    await restoreArchive(target, good);
+    // The state a killed restore leaves (the test above makes it for real): its marker, committed apart.
+    await target.db.restoreMarker.create({ data: { id: "interrupted", backupFile: "/backups/elsewhere.zip", startedAtUtc: new Date("2026-01-01T00:00:00Z") } });
+    const { checkBeforeServing } = await import("../../lib/cli/preflight.ts");
+    expect(await checkBeforeServing(target.db)).toMatch(/^A restore of \/backups\/elsewhere\.zip started at 2026-01-01T00:00:00\.000Z did not finish/);
+
+    const exported = runCli(target.url, ["export", "--out", path.join(dir, "blocked.zip")]);
+    expect((await exported.exited).code).toBe(1);
+    expect(exported.output().stderr).toMatch(/did not finish/);
+    expect(fs.existsSync(path.join(dir, "blocked.zip"))).toBe(false);
+
+    const asked = runCli(target.url, ["reset"]);
+    expect((await asked.exited).code).toBe(1);
+    expect(asked.output().stderr).toMatch(/reset --yes` deletes every row .*3 flights, and the mark of an interrupted restore/);
+    expect(await checkBeforeServing(target.db)).not.toBeNull();
+
+    const reset = runCli(target.url, ["reset", "--yes"]);
+    expect((await reset.exited).code).toBe(0);
+    expect(await checkBeforeServing(target.db)).toBeNull();
+    expect(isEmpty(await archiveRowCounts(target.db))).toBe(true);
+  }, 120_000);
 });
