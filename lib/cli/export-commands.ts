@@ -112,6 +112,7 @@ export async function runRestore(args: string[]): Promise<number> {
     });
     process.stdout.write("\n");
     console.log(`Restored ${file}: ${Object.entries(report.rowCounts).map(([t, n]) => `${t} ${n}`).join(", ")}`);
+    if (report.formatVersion < 2) console.log(`${file} is a format ${report.formatVersion} backup, which records no SHA-256 per entry: its entries were checked by CRC-32 alone.`);
     return 0;
   } catch (error) {
     if (error instanceof RestoreRefused) {

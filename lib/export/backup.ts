@@ -203,6 +203,11 @@ export interface BackupReport {
   rawFiles: number;
 }
 
+export interface RestoreReport extends BackupReport {
+  /** The backup's format: 1 had no per-entry SHA-256, so its entries were checked by CRC-32 alone. */
+  formatVersion: number;
+}
+
 /** A restore that would not be lossless or would mix archives: not-empty target, unknown format, failed check. */
 export class RestoreRefused extends Error {
   constructor(message: string) {
@@ -521,7 +526,7 @@ async function writeBackup(tx: DbTransaction, backup: BackupFile, now: Date, onP
  * (lib/cli/preflight.ts); restoring again, or `reset`, clears it.
  * @throws RestoreRefused when the database holds archive rows, the file is not a Lapsebank backup, or a check fails.
  */
-export async function restoreArchive(handle: Pick<DbHandle, "db" | "engine">, file: string, options: RestoreOptions = {}): Promise<BackupReport> {
+export async function restoreArchive(handle: Pick<DbHandle, "db" | "engine">, file: string, options: RestoreOptions = {}): Promise<RestoreReport> {
   const { db } = handle;
   const now = options.now ?? new Date();
   await refuseIfOccupied(db);
@@ -538,7 +543,7 @@ export async function restoreArchive(handle: Pick<DbHandle, "db" | "engine">, fi
           if (handle.engine === "postgres") await resetSequences(tx);
           // Every marker: an older interrupted restore is settled by this complete one.
           await tx.restoreMarker.deleteMany({});
-          return report;
+          return { ...report, formatVersion: backup.manifest.formatVersion };
         },
         { maxWait: 60_000, timeout: RESTORE_TRANSACTION_TIMEOUT_MS },
       );

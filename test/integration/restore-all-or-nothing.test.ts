@@ -158,7 +158,7 @@ describe.each(testEngines())("restore on %s is all or nothing", (engine) => {
     manifest.formatVersion = 1;
     const older = path.join(dir, "format-1.zip");
     writeBackup(older, files, manifest);
-    await restoreArchive(target, older);
+    expect((await restoreArchive(target, older)).formatVersion).toBe(1);
     expect(await archiveRowCounts(target.db)).toEqual(sourceCounts);
   });
 
