@@ -11,6 +11,7 @@ import { getDbHandle } from "../db/index.ts";
 import { LOCAL_VIEWER } from "../auth/visibility.ts";
 import { createExport, ExportRequestError } from "../export/export.ts";
 import { backupArchive, restoreArchive, RestoreRefused } from "../export/backup.ts";
+import { checkBeforeServing } from "./preflight.ts";
 
 export { EXPORT_HELP } from "./export-help.ts";
 
@@ -54,6 +55,11 @@ export async function runExport(args: string[]): Promise<number> {
     if (value !== undefined) record[key] = value;
   }
   if (values.raw) record.raw = "yes";
+  const problem = await checkBeforeServing(getDbHandle().db);
+  if (problem) {
+    console.error(problem);
+    return 1;
+  }
   const started = performance.now();
   let output;
   try {
@@ -102,10 +108,11 @@ export async function runRestore(args: string[]): Promise<number> {
   }
   try {
     const report = await restoreArchive(getDbHandle(), file, {
-      onProgress: (table, rows) => process.stdout.write(`\rRestoring ${table}: ${rows} rows`.padEnd(60)),
+      onProgress: (step, table, rows) => process.stdout.write(`\r${step === "check" ? "Checking" : "Restoring"} ${table}: ${rows} rows`.padEnd(60)),
     });
     process.stdout.write("\n");
     console.log(`Restored ${file}: ${Object.entries(report.rowCounts).map(([t, n]) => `${t} ${n}`).join(", ")}`);
+    if (report.formatVersion < 2) console.log(`${file} is a format ${report.formatVersion} backup, which records no SHA-256 per entry: its entries were checked by CRC-32 alone.`);
     return 0;
   } catch (error) {
     if (error instanceof RestoreRefused) {

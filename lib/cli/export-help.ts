@@ -9,4 +9,5 @@ export const EXPORT_HELP = `  export [options]             write a dataset (CSV 
       --query "metric=tropopause-altitude&groupBy=season"   the Archive or Climatology page's parameters
       --out FILE                            (default: a name like lapsebank-archive-20250101-120000.zip)
   backup <file>                write the whole archive (every table and raw file) into one zip
-  restore <file>               load a backup into an EMPTY database (refuses otherwise)`;
+  restore <file>               load a backup into an EMPTY database (refuses otherwise), all or
+                               nothing: every entry is checked first, then written in one transaction`;

@@ -27,6 +27,8 @@ Commands:
   demo                         load the invented demo archive into an empty database (any engine)
   demo --yes                   wipe the database first, then load the demo archive
   demo remove                  delete exactly the demo flights and the demo setup nothing else uses
+  reset [--yes]                delete every row of the database, leaving it empty (asks for --yes);
+                               also the way out of an interrupted restore
   ingest <files...>            upload logger files through the same pipeline as the web
       --school ID --site ID --layout ID [--sensor ID] [--payload ID] [--calibration ID]
       [--launch ISO-8601] [--visibility school|program|public] [--lenient] [--title TEXT]
@@ -42,9 +44,21 @@ ${EXPORT_HELP}
 
 DATABASE_URL chooses the database: file:./data/lapsebank.db (default, SQLite) or postgres://...`;
 
+/** Commands that read or write the archive: refused while an interrupted restore is unresolved. */
+const SERVING_COMMANDS = new Set(["demo", "ingest", "backup", "reprocess", "admin"]);
+
 async function main(argv: string[]): Promise<number> {
   const [command, ...rest] = argv;
   const url = getEnv().DATABASE_URL;
+  if (command !== undefined && SERVING_COMMANDS.has(command)) {
+    // `export` runs the same check in its worker (export-commands.ts).
+    const { checkBeforeServing } = await import("./preflight.ts");
+    const problem = await checkBeforeServing((await getDbHandle()).db);
+    if (problem) {
+      console.error(problem);
+      return 1;
+    }
+  }
   switch (command) {
     case "migrate":
       applyMigrations(url);
@@ -52,6 +66,8 @@ async function main(argv: string[]): Promise<number> {
       return 0;
     case "demo":
       return runDemo(rest, url);
+    case "reset":
+      return runReset(rest, url);
     case "ingest":
       return runIngest(rest);
     case "export":
@@ -109,6 +125,20 @@ async function runDemoRemove(): Promise<number> {
   const report = await removeDemoProgram(db, LOCAL_VIEWER, { userId: null, label: "cli" });
   console.log(`Demo removed: ${report.flights} flights, ${report.schools} schools, ${report.sites} sites, ${report.payloads} payloads, ${report.sensors} sensors, ${report.calibrations} calibrations, ${report.layouts} layouts`);
   for (const k of report.kept) console.log(`  kept ${k.kind} ${k.name}: ${k.reason}`);
+  return 0;
+}
+
+async function runReset(args: string[], url: string): Promise<number> {
+  const { values } = parseArgs({ args, options: { yes: { type: "boolean", default: false } } });
+  const { db } = await getDbHandle();
+  if (!values.yes) {
+    const [flights, markers] = await Promise.all([db.flight.count(), db.restoreMarker.count()]);
+    console.error(`\`reset --yes\` deletes every row of ${redactUrl(url)} (${flights} flights${markers ? ", and the mark of an interrupted restore" : ""}), leaving an empty database for \`restore\` or \`npm start\`.`);
+    return 1;
+  }
+  const { resetDatabase } = await import("./reset.ts");
+  await resetDatabase(db);
+  console.log(`${redactUrl(url)} is empty.`);
   return 0;
 }
 

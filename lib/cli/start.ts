@@ -5,11 +5,12 @@ import { applyMigrations, redactUrl } from "../db/migrate.ts";
 import { getEnv } from "../env.ts";
 import { chooseListenHost } from "./listen-host.ts";
 import { autoloadDemo } from "../../seed/load.ts";
+import { checkBeforeServing } from "./preflight.ts";
 
 /**
- * `npm start`: apply migrations, load the demo archive when an embedded SQLite database is empty
- * (never on PostgreSQL, never beside other data), build the app when there is no production build
- * yet, then serve it on PORT (default 3000).
+ * `npm start`: apply migrations, refuse a database an interrupted restore left, load the demo archive
+ * when an embedded SQLite database is empty (never on PostgreSQL, never beside other data), build the
+ * app when there is no production build yet, then serve it on PORT (default 3000).
  */
 async function start(): Promise<void> {
   // Nothing leaves a school's server: the build and the app processes inherit this.
@@ -19,6 +20,12 @@ async function start(): Promise<void> {
   applyMigrations(env.DATABASE_URL);
   const handle = getDbHandle();
   const { db } = handle;
+  const problem = await checkBeforeServing(db);
+  if (problem) {
+    console.error(problem);
+    await db.$disconnect();
+    process.exit(1);
+  }
   const demo = await autoloadDemo(handle, {
     skip: process.env.LAPSEBANK_SKIP_DEMO === "1",
     onProgress: (done, total) => {

@@ -1,134 +1,149 @@
 /**
- * Random-access reading of a zip file on disk: the central directory gives each entry's place,
- * and an entry is inflated as a stream of chunks, so restoring a large backup never holds the
- * whole file in memory. Handles the stored and deflate methods without ZIP64 (entries and the
- * file under 4 GiB), which is what fflate writes.
- * [S: PKWARE APPNOTE.TXT, sections 4.3.7 local file header, 4.3.12 central directory, 4.3.16 end of central directory]
+ * Reading a backup zip on disk through yauzl, which parses the central directory, checks every
+ * offset against the file and inflates with Node's zlib. What yauzl leaves to its caller is done here,
+ * as each entry streams: its CRC-32 (zlib.crc32) and, when the caller knows one, its SHA-256 are
+ * checked at the end, and its inflated size may pass neither the size the central directory declares
+ * nor a hard cap the caller sets, so a small entry that inflates to gigabytes is stopped after a few
+ * kilobytes. Chunks stream with back-pressure: memory stays flat however large the entry.
+ * [S: PKWARE APPNOTE.TXT, 4.4.7 CRC-32, 4.4.9 uncompressed size]
  */
-import fs from "node:fs/promises";
-import { Inflate } from "fflate";
+import { createHash } from "node:crypto";
+import zlib from "node:zlib";
+import yauzl from "yauzl";
 
-export interface ZipEntryInfo {
-  name: string;
-  method: number;
-  compressedSize: number;
-  uncompressedSize: number;
-  localHeaderOffset: number;
+/** An entry that is missing, too large, damaged or not what the manifest says; the message names it. */
+export class ZipEntryError extends Error {
+  constructor(
+    readonly entry: string,
+    message: string,
+  ) {
+    super(`${entry}: ${message}`);
+    this.name = "ZipEntryError";
+  }
 }
 
-const EOCD_SIGNATURE = 0x06054b50;
-const CENTRAL_SIGNATURE = 0x02014b50;
-const LOCAL_SIGNATURE = 0x04034b50;
+export interface EntryReadOptions {
+  /** The most inflated bytes this entry may hold; a larger declared or actual size is refused. */
+  maxBytes: number;
+  /** Expected SHA-256 of the inflated bytes (hex), checked when the entry has been read to its end. */
+  sha256?: string;
+}
+
+export interface EntryLine {
+  text: string;
+  /** 1-based, counting every line of the entry (empty ones too). */
+  lineNumber: number;
+}
 
 export class ZipReader {
   private constructor(
-    private readonly handle: fs.FileHandle,
-    readonly entries: Map<string, ZipEntryInfo>,
+    private readonly zip: yauzl.ZipFile,
+    private readonly byName: Map<string, yauzl.Entry>,
   ) {}
 
+  /** Opens the file and reads its central directory (entry names are checked; duplicate names are refused). */
   static async open(file: string): Promise<ZipReader> {
-    const handle = await fs.open(file, "r");
+    const zip = await yauzl.openPromise(file, { lazyEntries: true, autoClose: false, strictFileNames: true, validateEntrySizes: true });
     try {
-      const { size } = await handle.stat();
-      const tailLength = Math.min(size, 22 + 65_535);
-      const tail = Buffer.alloc(tailLength);
-      await handle.read(tail, 0, tailLength, size - tailLength);
-      let eocd = -1;
-      for (let i = tailLength - 22; i >= 0; i--) {
-        if (tail.readUInt32LE(i) === EOCD_SIGNATURE) {
-          eocd = i;
-          break;
-        }
+      const byName = new Map<string, yauzl.Entry>();
+      for await (const entry of zip.eachEntry()) {
+        if (byName.has(entry.fileName)) throw new Error(`the zip holds two entries named ${entry.fileName}`);
+        byName.set(entry.fileName, entry);
       }
-      if (eocd < 0) throw new Error("not a zip file (no end-of-central-directory record)");
-      const count = tail.readUInt16LE(eocd + 10);
-      const directorySize = tail.readUInt32LE(eocd + 12);
-      const directoryOffset = tail.readUInt32LE(eocd + 16);
-      if (count === 0xffff || directoryOffset === 0xffffffff) throw new Error("ZIP64 archives are not supported");
-      const directory = Buffer.alloc(directorySize);
-      await handle.read(directory, 0, directorySize, directoryOffset);
-      const entries = new Map<string, ZipEntryInfo>();
-      let at = 0;
-      for (let n = 0; n < count; n++) {
-        if (directory.readUInt32LE(at) !== CENTRAL_SIGNATURE) throw new Error("corrupt zip central directory");
-        const method = directory.readUInt16LE(at + 10);
-        const compressedSize = directory.readUInt32LE(at + 20);
-        const uncompressedSize = directory.readUInt32LE(at + 24);
-        const nameLength = directory.readUInt16LE(at + 28);
-        const extraLength = directory.readUInt16LE(at + 30);
-        const commentLength = directory.readUInt16LE(at + 32);
-        const localHeaderOffset = directory.readUInt32LE(at + 42);
-        const name = directory.toString("utf8", at + 46, at + 46 + nameLength);
-        entries.set(name, { name, method, compressedSize, uncompressedSize, localHeaderOffset });
-        at += 46 + nameLength + extraLength + commentLength;
-      }
-      return new ZipReader(handle, entries);
+      return new ZipReader(zip, byName);
     } catch (error) {
-      await handle.close();
+      zip.close();
       throw error;
     }
   }
 
-  /** The entry's uncompressed bytes as a stream of chunks. */
-  async *chunks(name: string, readSize = 1 << 20): AsyncGenerator<Uint8Array> {
-    const entry = this.entries.get(name);
-    if (!entry) throw new Error(`the zip has no entry ${name}`);
-    if (entry.method !== 0 && entry.method !== 8) throw new Error(`entry ${name}: compression method ${entry.method} is not supported`);
-    const header = Buffer.alloc(30);
-    await this.handle.read(header, 0, 30, entry.localHeaderOffset);
-    if (header.readUInt32LE(0) !== LOCAL_SIGNATURE) throw new Error(`entry ${name}: corrupt local header`);
-    const dataStart = entry.localHeaderOffset + 30 + header.readUInt16LE(26) + header.readUInt16LE(28);
-    const out: Uint8Array[] = [];
-    const inflate = entry.method === 8 ? new Inflate((data) => out.push(data)) : null;
-    for (let done = 0; done < entry.compressedSize; ) {
-      const length = Math.min(readSize, entry.compressedSize - done);
-      const buffer = new Uint8Array(length);
-      const { bytesRead } = await this.handle.read(buffer, 0, length, dataStart + done);
-      if (bytesRead !== length) throw new Error(`entry ${name}: file ends early`);
-      done += length;
-      if (inflate) {
-        inflate.push(buffer, done === entry.compressedSize);
-        yield* out.splice(0, out.length);
-      } else {
-        yield buffer;
+  has(name: string): boolean {
+    return this.byName.has(name);
+  }
+
+  get names(): string[] {
+    return [...this.byName.keys()];
+  }
+
+  /** The entry's inflated bytes as a stream of chunks, checked as described above. */
+  async *chunks(name: string, options: EntryReadOptions): AsyncGenerator<Uint8Array> {
+    const entry = this.byName.get(name);
+    if (!entry) throw new ZipEntryError(name, "the backup has no such entry");
+    if (entry.uncompressedSize > options.maxBytes) {
+      throw new ZipEntryError(name, `declares ${entry.uncompressedSize} bytes, more than the ${options.maxBytes} a restore reads for such an entry`);
+    }
+    if (entry.isEncrypted() || (entry.compressionMethod !== 0 && entry.compressionMethod !== 8)) {
+      throw new ZipEntryError(name, `compression method ${entry.compressionMethod}${entry.isEncrypted() ? " (encrypted)" : ""} is not supported`);
+    }
+    const limit = Math.min(entry.uncompressedSize, options.maxBytes);
+    const hash = options.sha256 === undefined ? null : createHash("sha256");
+    let stream: NodeJS.ReadableStream & { destroy(): void };
+    try {
+      stream = await this.zip.openReadStreamPromise(entry);
+    } catch (error) {
+      throw new ZipEntryError(name, (error as Error).message);
+    }
+    let crc = 0;
+    let bytes = 0;
+    try {
+      for await (const chunk of stream as AsyncIterable<Buffer>) {
+        bytes += chunk.length;
+        if (bytes > limit) throw new ZipEntryError(name, `inflates to more than the ${limit} bytes its directory entry declares`);
+        crc = zlib.crc32(chunk, crc);
+        hash?.update(chunk);
+        yield chunk;
       }
+    } catch (error) {
+      if (error instanceof ZipEntryError) throw error;
+      throw new ZipEntryError(name, `cannot be read (${(error as Error).message}); the backup is damaged`);
+    } finally {
+      stream.destroy();
     }
-    if (inflate && entry.compressedSize === 0) inflate.push(new Uint8Array(0), true);
-    yield* out.splice(0, out.length);
+    if (bytes !== entry.uncompressedSize) throw new ZipEntryError(name, `holds ${bytes} bytes but its directory entry declares ${entry.uncompressedSize}; the backup is damaged`);
+    if (crc >>> 0 !== entry.crc32 >>> 0) throw new ZipEntryError(name, "its CRC-32 does not match its bytes; the backup is damaged");
+    if (hash && options.sha256 !== undefined) {
+      const actual = hash.digest("hex");
+      if (actual !== options.sha256) throw new ZipEntryError(name, `its SHA-256 (${actual}) is not the one the manifest records (${options.sha256}); the backup is damaged or was altered`);
+    }
   }
 
-  /** The whole entry in memory (for small entries: the manifest, one raw file). */
-  async read(name: string): Promise<Uint8Array> {
+  /** The whole entry in memory (small entries: the manifest, one raw file). */
+  async read(name: string, options: EntryReadOptions): Promise<Buffer> {
     const parts: Uint8Array[] = [];
-    let length = 0;
-    for await (const chunk of this.chunks(name)) {
-      parts.push(chunk);
-      length += chunk.length;
-    }
-    const out = new Uint8Array(length);
-    let at = 0;
-    for (const part of parts) {
-      out.set(part, at);
-      at += part.length;
-    }
-    return out;
+    for await (const chunk of this.chunks(name, options)) parts.push(chunk);
+    return Buffer.concat(parts);
   }
 
-  /** The entry's text, line by line (UTF-8; a line may be long, chunks are split anywhere). */
-  async *lines(name: string): AsyncGenerator<string> {
+  /**
+   * The entry's text line by line (UTF-8, strict). A line longer than `maxLineChars` is refused rather
+   * than gathered; empty lines are skipped but counted.
+   */
+  async *lines(name: string, options: EntryReadOptions & { maxLineChars: number }): AsyncGenerator<EntryLine> {
     const decoder = new TextDecoder("utf-8", { fatal: true });
     let rest = "";
-    for await (const chunk of this.chunks(name)) {
-      rest += decoder.decode(chunk, { stream: true });
+    let lineNumber = 0;
+    const decode = (chunk?: Uint8Array) => {
+      try {
+        return chunk ? decoder.decode(chunk, { stream: true }) : decoder.decode();
+      } catch {
+        throw new ZipEntryError(name, `line ${lineNumber + 1} is not valid UTF-8; the backup is damaged`);
+      }
+    };
+    for await (const chunk of this.chunks(name, options)) {
+      rest += decode(chunk);
       const parts = rest.split("\n");
       rest = parts.pop() ?? "";
-      for (const line of parts) if (line) yield line;
+      for (const text of parts) {
+        lineNumber++;
+        if (text) yield { text, lineNumber };
+      }
+      if (rest.length > options.maxLineChars) throw new ZipEntryError(name, `line ${lineNumber + 1} is longer than ${options.maxLineChars} characters`);
     }
-    rest += decoder.decode();
-    if (rest) yield rest;
+    rest += decode();
+    if (rest) yield { text: rest, lineNumber: lineNumber + 1 };
   }
 
   async close(): Promise<void> {
-    await this.handle.close();
+    this.zip.close();
   }
 }

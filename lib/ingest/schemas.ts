@@ -2,7 +2,7 @@ import { z } from "zod";
 import type { AnalysisParameters, TemperatureCalibration } from "../analysis/types.ts";
 import { DEFAULT_ANALYSIS_PARAMETERS } from "../analysis/types.ts";
 import { HEIGHT_REFERENCES } from "../analysis/band-coverage.ts";
-import { launchTimeProblem } from "./time-bounds.ts";
+import { isStorableInstant, launchTimeProblem } from "./time-bounds.ts";
 
 const finite = z.number().finite();
 const positive = finite.positive();
@@ -86,6 +86,14 @@ export const launchTimeInputSchema = z
     }
     return date;
   });
+
+/**
+ * A date-time typed into setup (calibration validity, sensor mounts) from a form, the API or code: any
+ * value z.coerce.date reads, as long as both engines store it and the app reads it back (lib/ingest/time-bounds.ts).
+ */
+export function storableDateInputSchema(params?: Parameters<typeof z.coerce.date>[0]) {
+  return z.coerce.date(params).refine(isStorableInstant, { message: "Dates must lie in the years 0001–9999" });
+}
 
 const optionalDate = z.preprocess((v) => (v === "" || v === null || v === undefined ? undefined : v), launchTimeInputSchema.optional());
 

@@ -7,7 +7,7 @@ import { IngestFailure, type IngestIssue } from "./errors.ts";
 import { loggerLayoutSpecSchema, type LoggerLayoutSpec } from "./layout.ts";
 import { parseLoggerFile } from "./parse.ts";
 import { previewClockZone } from "./clock-zone.ts";
-import { analysisParametersSchema, temperatureCalibrationSchema } from "./schemas.ts";
+import { analysisParametersSchema, storableDateInputSchema, temperatureCalibrationSchema } from "./schemas.ts";
 import { payloadInputSchema, sensorInputSchema, siteInputSchema } from "./setup.ts";
 import type { Actor } from "./store.ts";
 
@@ -61,8 +61,8 @@ export const sensorMountInputSchema = z
   .object({
     sensorId: z.string().min(1),
     payloadId: z.string().min(1, "Choose a payload"),
-    fromUtc: z.coerce.date({ error: "Give the date the sensor went into the payload" }),
-    toUtc: z.coerce.date().nullable().default(null),
+    fromUtc: storableDateInputSchema({ error: "Give the date the sensor went into the payload" }),
+    toUtc: storableDateInputSchema().nullable().default(null),
   })
   .refine((m) => !m.toUtc || m.toUtc > m.fromUtc, { path: ["toUtc"], message: "The end of the mount must be after its start" });
 

@@ -3,7 +3,7 @@ import type { Db, DbTransaction } from "../db/index.ts";
 import { Prisma } from "../db/index.ts";
 import { isValidTimeZone } from "../analysis/launch-time.ts";
 import { loggerLayoutSpecSchema } from "./layout.ts";
-import { temperatureCalibrationSchema } from "./schemas.ts";
+import { storableDateInputSchema, temperatureCalibrationSchema } from "./schemas.ts";
 import type { Actor } from "./store.ts";
 
 type DbLike = Db | DbTransaction;
@@ -46,16 +46,16 @@ export const sensorInputSchema = z.object({
   timeConstantS: z.coerce.number().min(0).max(600).default(0),
   notes: z.string().max(2000).default(""),
   payloadId: z.string().min(1).optional(),
-  mountedFromUtc: z.coerce.date().optional(),
-  mountedToUtc: z.coerce.date().nullable().optional(),
+  mountedFromUtc: storableDateInputSchema().optional(),
+  mountedToUtc: storableDateInputSchema().nullable().optional(),
 });
 
 export const calibrationInputSchema = z
   .object({
     sensorId: z.string().min(1),
     spec: temperatureCalibrationSchema,
-    validFromUtc: z.coerce.date(),
-    validToUtc: z.coerce.date().nullable().default(null),
+    validFromUtc: storableDateInputSchema(),
+    validToUtc: storableDateInputSchema().nullable().default(null),
     method: z.string().trim().min(1).max(80),
     referenceReadings: z.array(z.object({ raw: z.number().finite(), temperatureK: z.number().finite() })).optional(),
     notes: z.string().max(2000).default(""),
