@@ -20,7 +20,10 @@ export const LAYERS = {
   "lib/auth": ["lib/db", "lib/env"],
   "lib/ingest": ["lib/analysis", "lib/db", "lib/auth", "lib/env", "seed/demo-*"],
   "lib/query": ["lib/db", "lib/auth", "lib/analysis", "lib/stats", "lib/env"],
-  "lib/export": ["lib/db", "lib/auth", "lib/query", "lib/analysis", "lib/stats", "lib/env", "package.json"],
+  "lib/export": [
+    "lib/db", "lib/auth", "lib/query", "lib/analysis", "lib/stats", "lib/env", "package.json",
+    { layer: "lib/ingest", names: ["isStorableInstant", "launchTimeProblem"], why: "restore applies the same date rule as upload (lib/ingest/time-bounds.ts)" },
+  ],
   "lib/cli": ["lib/analysis", "lib/stats", "lib/env", "lib/db", "lib/auth", "lib/ingest", "lib/query", "lib/export", "seed", "package.json"],
   // The demo generator (seed/demo-*.ts, seed/prng.ts) is pure data: lib/ingest may read the demo's names
   // from it to recognise and remove the demo; it takes only types from lib/ingest.
