@@ -16,6 +16,7 @@ export const LAYERS = {
   "lib/stats": [],
   "lib/env": [{ layer: "lib/auth", names: ["parseTrustedProxy"], why: "LAPSEBANK_TRUSTED_PROXY is validated with the proxy rules' own parser, which imports only node:net" }],
   "lib/lint": [],
+  "lib/http": [],
   "lib/db": ["lib/env"],
   "lib/auth": ["lib/db", "lib/env"],
   "lib/ingest": ["lib/analysis", "lib/db", "lib/auth", "lib/env", "seed/demo-*"],
@@ -31,7 +32,7 @@ export const LAYERS = {
   "seed/prng": ["lib/stats"],
   seed: ["lib/analysis", "lib/stats", "lib/db", "lib/ingest", "lib/env", "seed/demo-*", "seed/prng"],
   app: [
-    "lib/query", "lib/ingest", "lib/export", "lib/auth", "lib/analysis", "lib/stats", "lib/env",
+    "lib/query", "lib/ingest", "lib/export", "lib/auth", "lib/analysis", "lib/stats", "lib/env", "lib/http",
     { layer: "lib/db", names: ["getDb", "getDbHandle"], why: "pages and routes get the database handle and pass it on; queries live in lib/query" },
   ],
 };

@@ -104,7 +104,7 @@ describe("climatology", () => {
     const { page } = session;
     await page.goto("/climatology?metric=band-lapse-rate&bandBaseKm=6&bandTopKm=1");
     await expect.poll(() => page.getByRole("alert").first().innerText()).toMatch(/band base \(6 km\) must lie below its top \(1 km\)/);
-    expect(await page.getByLabel("Band top (km above sea level)").getAttribute("aria-invalid")).toBe("true");
+    expect(await page.getByLabel("Band top (km)").getAttribute("aria-invalid")).toBe("true");
     const response = await page.request.get("/api/v1/climatology?site=no-such-site");
     expect(response.status()).toBe(422);
     expect(((await response.json()) as { error: { message: string } }).error.message).toMatch(/unknown site id/);

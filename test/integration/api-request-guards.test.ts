@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, test, vi } from "vitest";
-import { createApiToken, createUser, setMembershipRole, signIn } from "../../lib/auth/accounts.ts";
+import { createApiToken, createUser, addMembership, signIn } from "../../lib/auth/accounts.ts";
 import { COMMA_COUNTS_LAYOUT } from "../../seed/demo-files.ts";
 import { makeFlightFile, setUpSchool } from "../support/flight-files.ts";
 import { createTestDatabase, type TestDatabase } from "../support/test-databases.ts";
@@ -136,7 +136,7 @@ describe("API request guards (SQLite)", () => {
     beforeAll(async () => {
       await createUser(database.db, { email: "coordinator@example.org", password: PASSWORD, displayName: "Coordinator" });
       const alice = await createUser(database.db, { email: "alice@example.org", password: PASSWORD, displayName: "Alice" });
-      await setMembershipRole(database.db, { userId: alice.id, schoolId: a.school.id, role: "contributor", byUserId: null });
+      await addMembership(database.db, { userId: alice.id, schoolId: a.school.id, role: "contributor", byUserId: null });
       contributorCookie = `lapsebank_session=${(await signIn(database.db, { email: "alice@example.org", password: PASSWORD }, "test")).sessionSecret}`;
       uploadToken = (await createApiToken(database.db, { userId: alice.id, schoolId: a.school.id, name: "script", scopes: ["read", "upload"] })).token;
     });

@@ -1,3 +1,4 @@
+import { readBackup, writeBackup } from "../support/backup-files.ts";
 import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
@@ -91,9 +92,8 @@ describe("backup and restore", () => {
       const source = databases[0]?.db as Db;
       const file = path.join(dir, "before-site-snapshot.zip");
       await backupArchive(source, file);
-      // The same backup without the four run columns, as an older Lapsebank wrote it.
-      const { unzipSync, zipSync } = await import("fflate");
-      const files = unzipSync(new Uint8Array(fs.readFileSync(file)));
+      // The same backup without the four run columns, as an older Lapsebank wrote it (format 1: no SHA-256s).
+      const { files, manifest } = readBackup(file);
       const columns = ["siteLatitudeDeg", "siteLongitudeDeg", "siteElevationM", "siteTimeZone"];
       for (const name of Object.keys(files).filter((n) => n.startsWith("tables/AnalysisRun-"))) {
         const lines = new TextDecoder().decode(files[name]).split("\n").filter(Boolean);
@@ -102,7 +102,8 @@ describe("backup and restore", () => {
         files[name] = new TextEncoder().encode(`${stripped.join("\n")}\n`);
       }
       const old = path.join(dir, "old.zip");
-      fs.writeFileSync(old, zipSync(files));
+      const { sha256: _checksums, ...formatOne } = manifest;
+      writeBackup(old, files, { ...formatOne, formatVersion: 1 });
       await restoreArchive(empty, old);
       const select = { id: true, siteLatitudeDeg: true, siteLongitudeDeg: true, siteElevationM: true, siteTimeZone: true } as const;
       const restored = await empty.db.analysisRun.findMany({ orderBy: { id: "asc" }, select });
