@@ -140,7 +140,7 @@ export async function climatologyScope(handle: DbLike, viewer: Viewer, queryReco
     throw error;
   }
   const parameters = Object.fromEntries(climatologySearchParams(parsed.query, queryRecord).entries());
-  const queryValues: QueryValueRow[] = result.groups.flatMap((g) => g.flights.map((f) => ({ flightId: f.flightId, groupKey: g.key, groupLabel: g.label, value: f.value })));
+  const queryValues: QueryValueRow[] = result.groups.flatMap((g) => g.flights.map((f) => ({ flightId: f.flightId, groupKey: g.key, groupLabel: g.label, value: f.value, synthetic: f.synthetic })));
   const claimWords = result.claim ? `; claim check: ${result.claim.verdict}` : "";
   return {
     flightIds: queryValues.map((v) => v.flightId),

@@ -55,6 +55,8 @@ export interface ClimatologyFlight {
   localHour: number;
   hoursAfterSunrise: number | null;
   value: number;
+  /** An invented flight (demo or test data), not a measurement. */
+  synthetic: boolean;
 }
 
 export interface GroupStatistics {
@@ -598,6 +600,7 @@ export async function getClimatology(
       localHour: toNumber(row.localHour) ?? 0,
       hoursAfterSunrise: toNumber(row.hoursAfterSunrise),
       value,
+      synthetic: isTrue(row.synthetic),
     });
   }
 

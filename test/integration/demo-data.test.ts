@@ -88,6 +88,7 @@ describe.each(testEngines())("demo data on %s", (engine) => {
     expect(result.invented).toEqual({ rule: "auto", included: true, contributingCount: result.overall.n, leftOutCount: 0 });
     expect(result.overall.n).toBeGreaterThan(0);
     expect(result.warnings.join(" ")).toMatch(new RegExp(`${result.overall.n} of the ${result.overall.n} contributing flights are invented`));
+    expect(result.groups.flatMap((g) => g.flights).every((f) => f.synthetic)).toBe(true);
   });
 
   test("every export format says the flights are invented", async () => {
@@ -118,6 +119,10 @@ describe.each(testEngines())("demo data on %s", (engine) => {
     expect(packaged.length).toBe(descriptor.lapsebank.inventedFlightCount);
     expect(packaged.every((r) => r.synthetic === "true")).toBe(true);
 
+    const values = parse(text(await bytesOf((await createExport(handle, LOCAL_VIEWER, { source: "climatology", format: "csv", table: "query-values", metric: "tropospheric-lapse-rate" })).body)), { columns: true }) as Array<Record<string, string>>;
+    expect(values.length).toBeGreaterThan(0);
+    expect(values.every((r) => r.synthetic === "true")).toBe(true);
+
     const dir = fs.mkdtempSync(path.join(os.tmpdir(), "lapsebank-demo-backup-"));
     try {
       const file = path.join(dir, "backup.zip");
@@ -144,6 +149,7 @@ describe.each(testEngines())("demo data on %s", (engine) => {
     const included = await climatology(database, { groupBy: "none", invented: "include" });
     expect(included.invented).toMatchObject({ rule: "include", included: true, leftOutCount: 0 });
     expect(included.invented.contributingCount).toBe(included.overall.n - 1);
+    expect(included.groups[0]?.flights.filter((f) => !f.synthetic).map((f) => f.flightId)).toEqual([realFlightId]);
     const excluded = await climatology(database, { groupBy: "none", invented: "exclude" });
     expect(excluded.overall.n).toBe(1);
     // Only invented flights at the chosen school: the message says why there is nothing.
