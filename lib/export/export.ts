@@ -114,7 +114,7 @@ function rawPath(flightId: string, name: string): string {
 }
 
 function rawFileRow(f: FlightExportRow): RawFileExportRow {
-  return { flightId: f.id, rawFileId: f.rawFile.id, name: f.rawFile.name, sha256: f.rawFile.sha256, sizeBytes: f.rawFile.sizeBytes, path: rawPath(f.id, f.rawFile.name) };
+  return { flightId: f.id, synthetic: f.synthetic, rawFileId: f.rawFile.id, name: f.rawFile.name, sha256: f.rawFile.sha256, sizeBytes: f.rawFile.sizeBytes, path: rawPath(f.id, f.rawFile.name) };
 }
 
 /** The row pages of one table for an export scope. */
@@ -133,7 +133,7 @@ function tablePages(handle: DbLike, viewer: Viewer, scope: ExportScope, name: Ta
       });
     case "runs":
       return as(RUNS_TABLE, async function* () {
-        for await (const page of flights()) yield page.flatMap((f) => (f.run ? [f.run] : []));
+        for await (const page of flights()) yield page.flatMap((f) => (f.run ? [{ ...f.run, synthetic: f.synthetic }] : []));
       });
     case "layers":
       return as(LAYERS_TABLE, async function* () {
@@ -206,7 +206,7 @@ function rowFormatter(fields: ReadonlyArray<ExportField<unknown>>): (row: unknow
 /** The current runs of the scope's flights, a page at a time, for the levels fast path. */
 async function* runPages(handle: DbLike, viewer: Viewer, scope: ExportScope, pageSize: number): AsyncGenerator<RunOfFlight[]> {
   for await (const page of readRunRefPages(handle.db, viewer, scope.flightIds, pageSize)) {
-    yield page.flatMap((f) => (f.run ? [{ flightId: f.id, runId: f.run.id }] : []));
+    yield page.flatMap((f) => (f.run ? [{ flightId: f.id, runId: f.run.id, synthetic: f.synthetic }] : []));
   }
 }
 
@@ -452,7 +452,7 @@ async function* packageEntries(handle: DbLike, viewer: Viewer, scope: ExportScop
       if (stopped) return;
       collect(collected, page);
       await flights.rowsOf(page);
-      await runs.rowsOf(page.flatMap((f) => (f.run ? [f.run] : [])));
+      await runs.rowsOf(page.flatMap((f) => (f.run ? [{ ...f.run, synthetic: f.synthetic }] : [])));
     }
     written.set("flights", await flights.end());
     written.set("runs", await runs.end());

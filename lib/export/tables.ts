@@ -59,10 +59,17 @@ export interface FlightExportRow {
 
 export interface LevelExportRow extends Omit<ProfileLevel, "id"> {
   flightId: string;
+  synthetic: boolean;
 }
 
 export interface LayerExportRow extends LayerStat {
   flightId: string;
+  synthetic: boolean;
+}
+
+/** A current analysis run with its flight's invented flag. */
+export interface RunExportRow extends AnalysisRun {
+  synthetic: boolean;
 }
 
 export interface CalibrationExportRow extends Calibration {
@@ -71,6 +78,7 @@ export interface CalibrationExportRow extends Calibration {
 
 export interface RawFileExportRow {
   flightId: string;
+  synthetic: boolean;
   rawFileId: string;
   name: string;
   sha256: string;
@@ -160,7 +168,7 @@ export const FLIGHTS_TABLE: ExportTable<FlightExportRow> = {
   ],
 };
 
-export const RUNS_TABLE: ExportTable<AnalysisRun> = {
+export const RUNS_TABLE: ExportTable<RunExportRow> = {
   name: "runs",
   title: "Analysis runs",
   description: "Provenance of every number: the current analysis run of each exported flight, with the analysis version and parameters, the calibration and logger layout exactly as applied.",
@@ -171,6 +179,7 @@ export const RUNS_TABLE: ExportTable<AnalysisRun> = {
   fields: [
     { name: "runId", type: "string", required: true, description: "Analysis run id", get: (r) => r.id },
     { name: "flightId", type: "string", required: true, description: "Flight analysed", get: (r) => r.flightId },
+    { name: "synthetic", type: "boolean", required: true, description: SYNTHETIC_NOTE, get: (r) => r.synthetic },
     { name: "analysisVersion", type: "string", required: true, description: "Lapsebank analysis version", get: (r) => r.analysisVersion },
     { name: "createdAt", type: "datetime", required: true, description: "When the run was made, UTC", get: (r) => r.createdAt },
     { name: "reason", type: "string", required: true, description: "Why the run was made (upload, reprocess …)", get: (r) => r.reason },
@@ -198,6 +207,7 @@ export const LAYERS_TABLE: ExportTable<LayerExportRow> = {
   fields: [
     { name: "layerId", type: "string", required: true, description: "Layer id", get: (r) => r.id },
     { name: "flightId", type: "string", required: true, description: "Flight", get: (r) => r.flightId },
+    { name: "synthetic", type: "boolean", required: true, description: SYNTHETIC_NOTE, get: (r) => r.synthetic },
     { name: "runId", type: "string", required: true, description: "Analysis run", get: (r) => r.runId },
     { name: "kind", type: "string", required: true, enum: ["surface-inversion", "elevated-inversion", "troposphere", "stratosphere", "band"], description: "Layer kind", get: (r) => r.kind },
     { name: "phase", type: "string", required: true, enum: ["ascent", "descent"], description: "Flight phase the layer comes from", get: (r) => r.phase },
@@ -229,6 +239,7 @@ export const LEVELS_TABLE: ExportTable<LevelExportRow> = {
   ],
   fields: [
     { name: "flightId", type: "string", required: true, description: "Flight", get: (r) => r.flightId },
+    { name: "synthetic", type: "boolean", required: true, description: SYNTHETIC_NOTE, get: (r) => r.synthetic },
     { name: "runId", type: "string", required: true, description: "Analysis run", get: (r) => r.runId },
     { name: "phase", type: "string", required: true, enum: ["ascent", "descent"], description: "Flight phase", get: (r) => r.phase },
     { name: "altitudeM", type: "number", required: true, unit: "m", cfStandardName: "altitude", description: "Mean altitude of the level's samples, geometric, above mean sea level", get: (r) => r.altitudeM },
@@ -270,6 +281,7 @@ export const RAW_FILES_TABLE: ExportTable<RawFileExportRow> = {
   foreignKeys: [{ fields: "flightId", reference: { resource: "flights", fields: "flightId" } }],
   fields: [
     { name: "flightId", type: "string", required: true, description: "Flight", get: (r) => r.flightId },
+    { name: "synthetic", type: "boolean", required: true, description: SYNTHETIC_NOTE, get: (r) => r.synthetic },
     { name: "rawFileId", type: "string", required: true, description: "Raw file id", get: (r) => r.rawFileId },
     { name: "name", type: "string", required: true, description: "File name as uploaded", get: (r) => r.name },
     { name: "sha256", type: "string", required: true, description: "SHA-256 of the bytes (hex)", get: (r) => r.sha256 },
@@ -288,10 +300,10 @@ export function queryValuesTable(metricLabel: string, unit: string): ExportTable
     foreignKeys: [{ fields: "flightId", reference: { resource: "flights", fields: "flightId" } }],
     fields: [
       { name: "flightId", type: "string", required: true, description: "Flight", get: (r) => r.flightId },
+      { name: "synthetic", type: "boolean", required: true, description: SYNTHETIC_NOTE, get: (r) => r.synthetic },
       { name: "groupKey", type: "string", required: true, description: "Group key as the query computed it", get: (r) => r.groupKey },
       { name: "groupLabel", type: "string", required: true, description: "Group label", get: (r) => r.groupLabel },
       { name: "value", type: "number", required: true, unit: unit === "K/km" ? "K km-1" : unit, description: `${metricLabel} (${unit})`, get: (r) => r.value },
-      { name: "synthetic", type: "boolean", required: true, description: SYNTHETIC_NOTE, get: (r) => r.synthetic },
     ],
   };
 }

@@ -118,6 +118,15 @@ describe.each(testEngines())("demo data on %s", (engine) => {
     const packaged = parse(text(zip["data/flights.csv"]), { columns: true }) as Array<Record<string, string>>;
     expect(packaged.length).toBe(descriptor.lapsebank.inventedFlightCount);
     expect(packaged.every((r) => r.synthetic === "true")).toBe(true);
+    // Every per-flight table says it too, so a table read on its own still tells.
+    for (const table of ["runs", "layers", "levels", "query-values"]) {
+      const rows = parse(text(zip[`data/${table}.csv`]), { columns: true }) as Array<Record<string, string>>;
+      expect(rows.length, table).toBeGreaterThan(0);
+      expect(rows.every((r) => r.synthetic === "true"), table).toBe(true);
+    }
+    const levelsCsv = parse(text(await bytesOf((await createExport(handle, LOCAL_VIEWER, { source: "archive", format: "csv", table: "levels" })).body)), { columns: true }) as Array<Record<string, string>>;
+    expect(levelsCsv.length).toBeGreaterThan(100);
+    expect(levelsCsv.every((r) => r.synthetic === "true")).toBe(true);
 
     const values = parse(text(await bytesOf((await createExport(handle, LOCAL_VIEWER, { source: "climatology", format: "csv", table: "query-values", metric: "tropospheric-lapse-rate" })).body)), { columns: true }) as Array<Record<string, string>>;
     expect(values.length).toBeGreaterThan(0);
