@@ -223,7 +223,7 @@ describe.each(testEngines())("demo data on %s", (engine) => {
 
     // The demo school with a real flight keeps that flight's site and its own layout, and itself.
     expect(report.kept).toContainEqual({ kind: "site", id: demoSiteUsedByReal.id, name: demoSiteUsedByReal.name, reason: "used by 1 flight" });
-    expect(report.kept.find((k) => k.kind === "school")?.id).toBe(demoSiteUsedByReal.schoolId);
+    expect(report.kept.find((k) => k.kind === "school")).toMatchObject({ id: demoSiteUsedByReal.schoolId, reason: "still has 1 site, 1 sensor, 1 logger layout, 1 flight, 1 raw file" });
     expect(await db.site.findMany({ where: { schoolId: demoSiteUsedByReal.schoolId }, select: { id: true } })).toEqual([{ id: demoSiteUsedByReal.id }]);
     expect(await db.loggerLayout.findMany({ where: { schoolId: demoSiteUsedByReal.schoolId }, select: { name: true } })).toEqual([{ name: "Real team logger" }]);
     expect(await db.sensor.findMany({ where: { schoolId: demoSiteUsedByReal.schoolId }, select: { serial: true, _count: { select: { calibrations: true } } } })).toEqual([{ serial: "REAL-1", _count: { calibrations: 1 } }]);
