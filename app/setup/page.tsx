@@ -49,7 +49,7 @@ export default async function SetupPage() {
       </div>
       {schools.length === 0 && <p className="notice notice-warn">No school exists yet: add one below, or load the invented demo program with <code>npm run lapsebank -- demo</code>.</p>}
       {isProgramAdmin && <NewSchoolForm />}
-      {isProgramAdmin && demo.flights + demo.schools > 0 && <RemoveDemoForm flights={demo.flights} />}
+      {isProgramAdmin && demo.flights > 0 && <RemoveDemoForm flights={demo.flights} />}
       <h2>Analysis parameters</h2>
       <p>
         Bin size {p.binSizeM} m, tropopause search from {p.tropopauseSearchFloorM} m, lag correction {p.lagCorrection.enabled ? `on (τ = ${p.lagCorrection.timeConstantS} s)` : "off"},

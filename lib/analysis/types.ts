@@ -4,7 +4,7 @@
  */
 
 /** Bump whenever a change can alter any stored analysis result. */
-export const ANALYSIS_VERSION = "1.1.0";
+export const ANALYSIS_VERSION = "1.2.0";
 
 import type { BandSpec } from "./band-coverage";
 

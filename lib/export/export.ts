@@ -13,7 +13,7 @@ import { csvCell, csvLine, formatNumberCell } from "./csv.ts";
 import { NativeDeflateEntry, ZipQueue } from "./zip-queue.ts";
 import { openLevelReader } from "./level-reader.ts";
 import { levelCsvPages, type CsvPage, type RunOfFlight } from "./level-csv.ts";
-import { citationCff, dataPackageDescriptor, readmeText, tableSchema, type PackageFacts, type ResourceFacts } from "./package-metadata.ts";
+import { citationCff, dataPackageDescriptor, inventedDataSentence, readmeText, tableSchema, type PackageFacts, type ResourceFacts } from "./package-metadata.ts";
 import {
   ExportRequestError,
   readCalibrations,
@@ -75,15 +75,18 @@ interface Collected {
   parameterSets: Map<string, unknown>;
   calibrationIds: Set<string>;
   flightCount: number;
+  /** Flights stored as invented (Flight.synthetic). */
+  inventedFlightCount: number;
 }
 
 function newCollected(): Collected {
-  return { schools: new Map(), analysisVersions: new Set(), parameterSets: new Map(), calibrationIds: new Set(), flightCount: 0 };
+  return { schools: new Map(), analysisVersions: new Set(), parameterSets: new Map(), calibrationIds: new Set(), flightCount: 0, inventedFlightCount: 0 };
 }
 
 function collect(c: Collected, page: readonly FlightExportRow[]): void {
   for (const f of page) {
     c.flightCount++;
+    if (f.synthetic) c.inventedFlightCount++;
     c.schools.set(f.schoolId, f.school.name);
     if (f.run) {
       c.analysisVersions.add(f.run.analysisVersion);
@@ -111,7 +114,7 @@ function rawPath(flightId: string, name: string): string {
 }
 
 function rawFileRow(f: FlightExportRow): RawFileExportRow {
-  return { flightId: f.id, rawFileId: f.rawFile.id, name: f.rawFile.name, sha256: f.rawFile.sha256, sizeBytes: f.rawFile.sizeBytes, path: rawPath(f.id, f.rawFile.name) };
+  return { flightId: f.id, synthetic: f.synthetic, rawFileId: f.rawFile.id, name: f.rawFile.name, sha256: f.rawFile.sha256, sizeBytes: f.rawFile.sizeBytes, path: rawPath(f.id, f.rawFile.name) };
 }
 
 /** The row pages of one table for an export scope. */
@@ -130,7 +133,7 @@ function tablePages(handle: DbLike, viewer: Viewer, scope: ExportScope, name: Ta
       });
     case "runs":
       return as(RUNS_TABLE, async function* () {
-        for await (const page of flights()) yield page.flatMap((f) => (f.run ? [f.run] : []));
+        for await (const page of flights()) yield page.flatMap((f) => (f.run ? [{ ...f.run, synthetic: f.synthetic }] : []));
       });
     case "layers":
       return as(LAYERS_TABLE, async function* () {
@@ -203,7 +206,7 @@ function rowFormatter(fields: ReadonlyArray<ExportField<unknown>>): (row: unknow
 /** The current runs of the scope's flights, a page at a time, for the levels fast path. */
 async function* runPages(handle: DbLike, viewer: Viewer, scope: ExportScope, pageSize: number): AsyncGenerator<RunOfFlight[]> {
   for await (const page of readRunRefPages(handle.db, viewer, scope.flightIds, pageSize)) {
-    yield page.flatMap((f) => (f.run ? [{ flightId: f.id, runId: f.run.id }] : []));
+    yield page.flatMap((f) => (f.run ? [{ flightId: f.id, runId: f.run.id, synthetic: f.synthetic }] : []));
   }
 }
 
@@ -264,8 +267,10 @@ export async function createExport(handle: DbLike, viewer: Viewer, record: Recor
       const { table } = tablePages(handle, viewer, scope, options.table, pageSize, null);
       return { fileName: `${base}-${table.name}.csv`, contentType: "text/csv; charset=utf-8", options, scope, body: bytesOf(tableCsvPages(handle, viewer, scope, options.table, pageSize, null), context.chunksDoneOnNext ?? false) };
     }
-    case "json":
-      return { fileName: `${base}.json`, contentType: "application/json; charset=utf-8", options, scope, body: jsonChunks(handle, viewer, scope, options, now, pageSize) };
+    case "json": {
+      const invented = await countInventedFlights(handle.db, scope.flightIds);
+      return { fileName: `${base}.json`, contentType: "application/json; charset=utf-8", options, scope, body: jsonChunks(handle, viewer, scope, options, now, pageSize, invented) };
+    }
     case "package":
       return { fileName: `${base}.zip`, contentType: "application/zip", options, scope, body: packageChunks(handle, viewer, scope, options, now, pageSize) };
   }
@@ -302,13 +307,24 @@ function packageFacts(options: ExportOptions, scope: ExportScope, collected: Col
     analysisParameterSets: [...collected.parameterSets.values()],
     calibrationIds: [...collected.calibrationIds].sort(),
     flightCount: collected.flightCount,
+    inventedFlightCount: collected.inventedFlightCount,
     includesRawFiles: options.raw,
     resources,
   };
 }
 
-/** One JSON document: metadata, the data dictionary (Table Schemas), then every table as an array of records. */
-async function* jsonChunks(handle: DbLike, viewer: Viewer, scope: ExportScope, options: ExportOptions, now: Date, pageSize: number): AsyncGenerator<Uint8Array> {
+/** How many of the scope's flights are invented (the scope already applies the viewer's visibility). */
+async function countInventedFlights(db: Db, flightIds: readonly string[]): Promise<number> {
+  let count = 0;
+  for (let i = 0; i < flightIds.length; i += 5000) count += await db.flight.count({ where: { id: { in: flightIds.slice(i, i + 5000) }, synthetic: true } });
+  return count;
+}
+
+/**
+ * One JSON document: metadata (with how many flights are invented and, if any are, a sentence
+ * saying so), the data dictionary (Table Schemas), then every table as an array of records.
+ */
+async function* jsonChunks(handle: DbLike, viewer: Viewer, scope: ExportScope, options: ExportOptions, now: Date, pageSize: number, inventedFlightCount: number): AsyncGenerator<Uint8Array> {
   const collected = newCollected();
   const names = packageTables(scope, { ...options, raw: false });
   const tables = names.map((name) => tablePages(handle, viewer, scope, name, pageSize, collected));
@@ -319,6 +335,8 @@ async function* jsonChunks(handle: DbLike, viewer: Viewer, scope: ExportScope, o
     title: options.title ?? defaultTitle(scope, now),
     licence: licenceById(options.licence),
     query: scope.description,
+    inventedFlightCount,
+    ...(inventedFlightCount > 0 ? { inventedData: inventedDataSentence(inventedFlightCount, scope.flightIds.length) } : {}),
     dataDictionary: Object.fromEntries(tables.map(({ table }) => [table.name, tableSchema(table)])),
   };
   yield encoder.encode(`{"lapsebank":${JSON.stringify(head)},"tables":{`);
@@ -344,6 +362,7 @@ async function* jsonChunks(handle: DbLike, viewer: Viewer, scope: ExportScope, o
     analysisParameters: [...collected.parameterSets.values()],
     calibrationsUsed: [...collected.calibrationIds].sort(),
     flightCount: collected.flightCount,
+    inventedFlightCount: collected.inventedFlightCount,
   };
   yield encoder.encode(`},"provenance":${JSON.stringify(provenance)}}\n`);
 }
@@ -433,7 +452,7 @@ async function* packageEntries(handle: DbLike, viewer: Viewer, scope: ExportScop
       if (stopped) return;
       collect(collected, page);
       await flights.rowsOf(page);
-      await runs.rowsOf(page.flatMap((f) => (f.run ? [f.run] : [])));
+      await runs.rowsOf(page.flatMap((f) => (f.run ? [{ ...f.run, synthetic: f.synthetic }] : [])));
     }
     written.set("flights", await flights.end());
     written.set("runs", await runs.end());

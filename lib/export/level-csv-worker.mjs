@@ -62,7 +62,7 @@ const levelsOfRuns = database
   )
   .raw(true);
 
-/** CSV records of the runs' levels (flightId, runId, phase, then the numbers), run by run in the given order, each by phase then altitude. */
+/** CSV records of the runs' levels (flightId, synthetic, runId, phase, then the numbers), run by run in the given order, each by phase then altitude. */
 function pageCsv(runs) {
   const byRun = new Map();
   for (const row of levelsOfRuns.all(JSON.stringify(runs.map((r) => r[1])))) {
@@ -72,12 +72,12 @@ function pageCsv(runs) {
   }
   let text = "";
   let rows = 0;
-  for (const [flightId, runId] of runs) {
+  for (const [flightId, runId, synthetic] of runs) {
     const phases = byRun.get(runId);
     if (!phases) continue;
     phases.sort((a, b) => (a[1] < b[1] ? -1 : a[1] > b[1] ? 1 : 0));
     for (const [, phase, count, numbers] of phases) {
-      const prefix = `${textCell(flightId)},${textCell(runId)},${textCell(String(phase))},`;
+      const prefix = `${textCell(flightId)},${synthetic ? "true" : "false"},${textCell(runId)},${textCell(String(phase))},`;
       text += `${prefix}${(hasLongNumber(numbers) ? numbers.replace(NOT_SHORTEST, shortest) : numbers).replaceAll("\n", `\r\n${prefix}`)}\r\n`;
       rows += count;
     }

@@ -23,6 +23,8 @@ import { pgPoolConfig, sqlitePath } from "./level-reader.ts";
 export interface RunOfFlight {
   flightId: string;
   runId: string;
+  /** The flight is invented (Flight.synthetic): the levels table's synthetic column. */
+  synthetic: boolean;
 }
 
 export interface CsvPage {
@@ -105,7 +107,7 @@ async function* sqliteLevelPages(url: string, pages: AsyncIterable<RunOfFlight[]
     const promise = new Promise<CsvPage>((resolve, reject) => waiting.set(seq, { resolve, reject }));
     promise.catch(() => undefined); // observed when its turn comes
     settled.set(seq, promise);
-    workerFor(seq).postMessage({ seq, runs: runs.map((r) => [r.flightId, r.runId]) });
+    workerFor(seq).postMessage({ seq, runs: runs.map((r) => [r.flightId, r.runId, r.synthetic]) });
   };
   // Keep each worker two pages ahead of the consumer, no more: memory stays a few pages.
   const ahead = workerCount * 2;
@@ -150,10 +152,10 @@ function pgPageCsv(runs: readonly RunOfFlight[], result: readonly PgLevelRow[]):
   }
   let text = "";
   let rows = 0;
-  for (const { flightId, runId } of runs) {
+  for (const { flightId, runId, synthetic } of runs) {
     const phases = (byRun.get(runId) ?? []).sort((a, b) => (a[1] < b[1] ? -1 : a[1] > b[1] ? 1 : 0));
     for (const [, phase, count, lines] of phases) {
-      const prefix = `${csvCell(flightId)},${csvCell(runId)},${csvCell(phase)},`;
+      const prefix = `${csvCell(flightId)},${csvCell(synthetic)},${csvCell(runId)},${csvCell(phase)},`;
       const numbers = lines.includes("e") ? lines.replace(EXPONENT_NUMBER, shortest) : lines;
       text += `${prefix}${numbers.replaceAll("\n", `\r\n${prefix}`)}\r\n`;
       rows += Number(count);

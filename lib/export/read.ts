@@ -140,7 +140,7 @@ export async function climatologyScope(handle: DbLike, viewer: Viewer, queryReco
     throw error;
   }
   const parameters = Object.fromEntries(climatologySearchParams(parsed.query, queryRecord).entries());
-  const queryValues: QueryValueRow[] = result.groups.flatMap((g) => g.flights.map((f) => ({ flightId: f.flightId, groupKey: g.key, groupLabel: g.label, value: f.value })));
+  const queryValues: QueryValueRow[] = result.groups.flatMap((g) => g.flights.map((f) => ({ flightId: f.flightId, groupKey: g.key, groupLabel: g.label, value: f.value, synthetic: f.synthetic })));
   const claimWords = result.claim ? `; claim check: ${result.claim.verdict}` : "";
   return {
     flightIds: queryValues.map((v) => v.flightId),
@@ -184,6 +184,8 @@ export async function* readFlightPages(db: Db, viewer: Viewer, flightIds: readon
 /** A flight's current run id, all the layer and level passes need (cheaper than reading whole flight rows). */
 export interface FlightRunRef {
   id: string;
+  /** The flight is invented (Flight.synthetic). */
+  synthetic: boolean;
   run: { id: string } | null;
 }
 
@@ -193,31 +195,34 @@ export async function* readRunRefPages(db: Db, viewer: Viewer, flightIds: readon
     const ids = flightIds.slice(start, start + pageSize);
     const runs = await db.analysisRun.findMany({
       where: { isCurrent: true, flightId: { in: ids }, flight: flightVisibilityWhere(viewer) },
-      select: { id: true, flightId: true },
+      select: { id: true, flightId: true, flight: { select: { synthetic: true } } },
     });
-    const runOf = new Map(runs.map((r) => [r.flightId, r.id]));
+    const runOf = new Map(runs.map((r) => [r.flightId, r]));
     yield ids.flatMap((id) => {
-      const runId = runOf.get(id);
-      return runId ? [{ id, run: { id: runId } }] : [];
+      const run = runOf.get(id);
+      return run ? [{ id, synthetic: run.flight.synthetic, run: { id: run.id } }] : [];
     });
   }
 }
 
 /** Layer statistics of the current runs of a page of flights. */
 export async function readLayers(db: Db, page: readonly FlightRunRef[]): Promise<LayerExportRow[]> {
-  const flightOfRun = new Map(page.flatMap((f) => (f.run ? [[f.run.id, f.id] as const] : [])));
+  const flightOfRun = new Map(page.flatMap((f) => (f.run ? [[f.run.id, f] as const] : [])));
   if (flightOfRun.size === 0) return [];
   const layers = await db.layerStat.findMany({ where: { runId: { in: [...flightOfRun.keys()] } }, orderBy: [{ runId: "asc" }, { phase: "asc" }, { baseM: "asc" }, { id: "asc" }] });
-  return layers.map((l) => ({ ...l, flightId: flightOfRun.get(l.runId) ?? "" }));
+  return layers.map((l) => {
+    const flight = flightOfRun.get(l.runId);
+    return { ...l, flightId: flight?.id ?? "", synthetic: flight?.synthetic ?? false };
+  });
 }
 
 /** Binned levels of the current runs of a page of flights, by run, phase and altitude. */
 export async function readLevels(reader: LevelReader, page: readonly FlightRunRef[]): Promise<LevelExportRow[]> {
-  const flightOfRun = new Map(page.flatMap((f) => (f.run ? [[f.run.id, f.id] as const] : [])));
+  const flightOfRun = new Map(page.flatMap((f) => (f.run ? [[f.run.id, f] as const] : [])));
   if (flightOfRun.size === 0) return [];
   const tuples = await reader.read([...flightOfRun.keys()]);
   return tuples.map((t) => ({
-    flightId: flightOfRun.get(t[0]) ?? "", runId: t[0], phase: t[1], altitudeM: t[2], baseM: t[3], topM: t[4], sampleCount: t[5],
+    flightId: flightOfRun.get(t[0])?.id ?? "", synthetic: flightOfRun.get(t[0])?.synthetic ?? false, runId: t[0], phase: t[1], altitudeM: t[2], baseM: t[3], topM: t[4], sampleCount: t[5],
     temperatureK: t[6], temperatureSdK: t[7], pressureHpa: t[8], relativeHumidityPct: t[9],
   }));
 }

@@ -86,6 +86,17 @@ export interface DemoRemovalReport {
 
 const CHUNK = 200;
 
+const SCHOOL_CONTENT_WORDS = {
+  sites: ["site", "sites"], payloads: ["payload", "payloads"], sensors: ["sensor", "sensors"], layouts: ["logger layout", "logger layouts"],
+  flights: ["flight", "flights"], rawFiles: ["raw file", "raw files"], memberships: ["member", "members"], invitations: ["invitation", "invitations"],
+  apiTokens: ["API token", "API tokens"],
+} as const;
+
+function countWords(n: number, what: keyof typeof SCHOOL_CONTENT_WORDS): string {
+  const [one, many] = SCHOOL_CONTENT_WORDS[what];
+  return `${n} ${n === 1 ? one : many}`;
+}
+
 function chunks<T>(items: readonly T[]): T[][] {
   const out: T[][] = [];
   for (let i = 0; i < items.length; i += CHUNK) out.push(items.slice(i, i + CHUNK));
@@ -163,7 +174,7 @@ export async function removeDemoProgram(db: Db, viewer: Viewer, actor: Actor): P
         where: { id: schoolId },
         select: { name: true, _count: { select: { sites: true, payloads: true, sensors: true, layouts: true, flights: true, rawFiles: true, memberships: true, invitations: true, apiTokens: true } } },
       });
-      const remaining = Object.entries(left._count).filter(([, n]) => n > 0).map(([what, n]) => `${n} ${what}`);
+      const remaining = Object.entries(left._count).filter(([, n]) => n > 0).map(([what, n]) => countWords(n, what as keyof typeof SCHOOL_CONTENT_WORDS));
       if (remaining.length) {
         report.kept.push({ kind: "school", id: schoolId, name: left.name, reason: `still has ${remaining.join(", ")}` });
         continue;

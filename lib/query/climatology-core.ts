@@ -68,6 +68,8 @@ export interface ClimatologyFlight {
   localHour: number;
   hoursAfterSunrise: number | null;
   value: number;
+  /** An invented flight (demo or test data), not a measurement. */
+  synthetic: boolean;
 }
 
 export interface GroupStatistics {
@@ -110,6 +112,18 @@ export interface ExclusionCount {
   count: number;
 }
 
+/** How invented flights (Flight.synthetic) took part in a result. */
+export interface InventedFlightsUse {
+  /** The rule asked for: "auto" leaves invented flights out when the viewer can see any real flight. */
+  rule: "auto" | "include" | "exclude";
+  /** Whether invented flights were taken into this result. */
+  included: boolean;
+  /** Invented flights among the contributing flights (those with a value in a group). */
+  contributingCount: number;
+  /** Invented flights that would otherwise have matched the filters, left out by the rule. */
+  leftOutCount: number;
+}
+
 export interface ClimatologyResult {
   metric: MetricInfo;
   /** The band as asked: limits in m above `reference` (agl: each flight's ground, msl: sea level). */
@@ -122,12 +136,14 @@ export interface ClimatologyResult {
   excludedCount: number;
   profiles: GroupProfile[];
   claim: ClaimCheckResult | null;
+  invented: InventedFlightsUse;
   warnings: string[];
 }
 
 type DbLike = Pick<DbHandle, "db" | "engine">;
 
 interface CandidateRow {
+  synthetic: unknown;
   flightId: string;
   runId: string;
   title: string;
@@ -187,6 +203,7 @@ function dateConditions(engine: SqlEngine, from: string | undefined, to: string 
   return out;
 }
 
+/** The filter conditions; `invented` is the rule already resolved ("auto" is decided in getClimatology). */
 function filterConditions(viewer: Viewer, query: ClimatologyQuery, engine: SqlEngine): SqlFragment[] {
   const visibility = visibilitySql(viewer, "f");
   // On SQLite, "+" keeps the planner off the low-selectivity isCurrent indexes: one sequential scan of the
@@ -206,6 +223,7 @@ function filterConditions(viewer: Viewer, query: ClimatologyQuery, engine: SqlEn
   if (query.elevationFrom !== undefined) c.push(sql`s."solarElevationDeg" >= ${query.elevationFrom}`);
   if (query.elevationTo !== undefined) c.push(sql`s."solarElevationDeg" <= ${query.elevationTo}`);
   if (query.qc === "exclude") c.push(raw(`s."qcFlagged" = FALSE`));
+  if (query.invented === "exclude") c.push(raw(`f."synthetic" = FALSE`));
   if (query.minCoverageKm !== undefined) c.push(sql`(s."maxAltitudeM" - s."minAltitudeM") >= ${query.minCoverageKm * 1000}`);
   if (query.claim === "two-group" && query.groupA && query.groupB) {
     c.push(sql`(${selectionSql(query.groupA)}) OR (${selectionSql(query.groupB)})`);
@@ -281,7 +299,7 @@ function candidateSql(viewer: Viewer, query: ClimatologyQuery, engine: SqlEngine
   const valueSql = band ? raw("NULL") : raw(METRIC_VALUE_SQL[query.metric as Exclude<ClimatologyMetric, "band-lapse-rate">]);
   if (!band && query.flights === "none") {
     // Summary only: the group key, the value and the site (for the claim's clustering caveat).
-    return sql`SELECT s."siteId" AS "siteId", ${groupKeySql(query, engine)} AS "groupKey", ${valueSql} AS "value"
+    return sql`SELECT s."siteId" AS "siteId", f."synthetic" AS "synthetic", ${groupKeySql(query, engine)} AS "groupKey", ${valueSql} AS "value"
       FROM "FlightSummary" s JOIN "Flight" f ON f."id" = s."flightId"
       WHERE ${where}`;
   }
@@ -289,7 +307,7 @@ function candidateSql(viewer: Viewer, query: ClimatologyQuery, engine: SqlEngine
   const bandColumns = range
     ? sql`, ${range.baseM} AS "bandBaseMslM", ${range.topM} AS "bandTopMslM", s."groundElevationM" AS "groundElevationM"`
     : raw("");
-  const candidates = sql`SELECT s."flightId" AS "flightId", s."runId" AS "runId", f."title" AS "title", s."siteId" AS "siteId",
+  const candidates = sql`SELECT s."flightId" AS "flightId", s."runId" AS "runId", f."title" AS "title", s."siteId" AS "siteId", f."synthetic" AS "synthetic",
       s."schoolId" AS "schoolId", ${raw(launchIso)} AS "launchAtUtc", s."dayOfYear" AS "dayOfYear", s."localHour" AS "localHour",
       s."hoursAfterSunrise" AS "hoursAfterSunrise", ${groupKeySql(query, engine)} AS "groupKey", ${valueSql} AS "value"${bandColumns}
     FROM "FlightSummary" s JOIN "Flight" f ON f."id" = s."flightId"
@@ -539,6 +557,31 @@ async function loadProfiles(viewer: Viewer, query: ClimatologyQuery, handle: DbL
   return out;
 }
 
+/** SQLite answers booleans as 0/1 (number or bigint), PostgreSQL as true/false. */
+function isTrue(value: unknown): boolean {
+  return value === true || toNumber(value) === 1;
+}
+
+/** Does the viewer see at least one real (not invented) flight with a current summary? */
+async function anyRealFlightVisible(viewer: Viewer, handle: DbLike): Promise<boolean> {
+  const visibility = visibilitySql(viewer, "f");
+  const statement = sql`SELECT 1 AS "one" FROM "FlightSummary" s JOIN "Flight" f ON f."id" = s."flightId"
+    WHERE ${andSql([raw(`s."isCurrent" = TRUE`), { text: visibility.text, values: visibility.values }, raw(`f."synthetic" = FALSE`)])}
+    LIMIT 1`;
+  const { text, values } = forEngine(statement, handle.engine);
+  return (await handle.db.$queryRawUnsafe<unknown[]>(text, ...values)).length > 0;
+}
+
+/** Invented flights that pass every other filter, for the count of those the rule left out. */
+async function countInventedLeftOut(viewer: Viewer, query: ClimatologyQuery, handle: DbLike): Promise<number> {
+  const conditions = filterConditions(viewer, { ...query, invented: "include" }, handle.engine);
+  const statement = sql`SELECT COUNT(*) AS n FROM "FlightSummary" s JOIN "Flight" f ON f."id" = s."flightId"
+    WHERE ${andSql([...conditions, raw(`f."synthetic" = TRUE`)])}`;
+  const { text, values } = forEngine(statement, handle.engine);
+  const rows = await handle.db.$queryRawUnsafe<Array<{ n: unknown }>>(text, ...values);
+  return toNumber(rows[0]?.n) ?? 0;
+}
+
 /**
  * Runs a climatology query for a viewer: every filter, the chosen metric per flight (the band
  * lapse rate computed from stored levels in SQL), summary statistics per group (lib/stats
@@ -554,11 +597,15 @@ export async function getClimatology(
   options: { profiles?: boolean } = {},
 ): Promise<ClimatologyResult> {
   const names = await checkReferences(handle, query);
+  const rule = query.invented;
+  const includeInvented = rule === "include" || (rule === "auto" && !(await anyRealFlightVisible(viewer, handle)));
+  query = { ...query, invented: includeInvented ? "include" : "exclude" };
   const statement = candidateSql(viewer, query, handle.engine);
   const { text, values } = forEngine(statement, handle.engine);
-  const [rows, profiles] = await Promise.all([
+  const [rows, profiles, leftOutCount] = await Promise.all([
     handle.db.$queryRawUnsafe<CandidateRow[]>(text, ...values),
     options.profiles === false ? Promise.resolve(new Map<string, ProfileLevelMean[]>()) : loadProfiles(viewer, query, handle),
+    includeInvented ? Promise.resolve(0) : countInventedLeftOut(viewer, query, handle),
   ]);
   const metric = METRIC_INFO[query.metric];
   const band = bandOf(query);
@@ -568,6 +615,7 @@ export async function getClimatology(
   const bandWords = band ? `no coverage of ${bandText} (${query.phase})` : "";
   const includeFlights = query.flights === "all";
   const byGroup = new Map<string, { values: number[]; siteNames: string[]; flights: ClimatologyFlight[] }>();
+  let inventedContributing = 0;
 
   // Runs the sums cannot decide (bins not contiguous, or altitudes that hardly spread) are decided from their levels.
   let levelsOf = new Map<string, Array<BandLevel & { temperatureK: number }>>();
@@ -602,6 +650,7 @@ export async function getClimatology(
       exclude(query.groupBy === "hours-after-sunrise" ? "no sunrise at the site that day (polar day or night)" : "no group");
       continue;
     }
+    if (isTrue(row.synthetic)) inventedContributing++;
     const siteName = names.sites.get(row.siteId) ?? row.siteId;
     const entry = byGroup.get(key) ?? { values: [], siteNames: [], flights: [] };
     byGroup.set(key, entry);
@@ -622,6 +671,7 @@ export async function getClimatology(
       localHour: toNumber(row.localHour) ?? 0,
       hoursAfterSunrise: toNumber(row.hoursAfterSunrise),
       value,
+      synthetic: isTrue(row.synthetic),
     });
   }
 
@@ -649,7 +699,8 @@ export async function getClimatology(
 
   if (allValues.length === 0) {
     const why = excluded.length ? ` (${excluded.map((e) => `${e.count} excluded: ${e.reason}`).join("; ")})` : "";
-    const message = rows.length === 0 ? "No flights match these filters" : `None of the ${rows.length} matching flights has a ${metric.label}${why}`;
+    const leftOut = leftOutCount > 0 ? ` (${leftOutCount} invented flight${leftOutCount === 1 ? "" : "s"} left out because real flights exist; invented=include takes them)` : "";
+    const message = rows.length === 0 ? `No flights match these filters${leftOut}` : `None of the ${rows.length} matching flights has a ${metric.label}${why}`;
     throw new ClimatologyQueryError("no-flights", message, band ? "bandBaseKm" : null);
   }
 
@@ -685,6 +736,7 @@ export async function getClimatology(
   }
 
   const warnings: string[] = [];
+  if (inventedContributing > 0) warnings.push(`${inventedContributing} of the ${allValues.length} contributing flights ${inventedContributing === 1 ? "is" : "are"} invented (demo or test data, not measurements)`);
   if (excludedCount > 0) warnings.push(`${excludedCount} flight${excludedCount === 1 ? "" : "s"} excluded: ${excluded.map((e) => `${e.reason} (${e.count})`).join("; ")}`);
   return {
     metric: { ...metric, label: metricLabel },
@@ -696,6 +748,7 @@ export async function getClimatology(
     excludedCount,
     profiles: groups.map((g) => ({ key: g.key, label: g.label, levels: profiles.get(g.key) ?? [] })),
     claim,
+    invented: { rule, included: includeInvented, contributingCount: inventedContributing, leftOutCount },
     warnings,
   };
 }

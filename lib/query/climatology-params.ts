@@ -205,6 +205,11 @@ const climatologyBaseSchema = z.object({
   elevationTo: optionalNumber("elevationTo (solar elevation, degrees)", -90, 90),
   phase: enumWithDefault(["ascent", "descent"] as const, "ascent", "phase"),
   qc: enumWithDefault(["exclude", "include"] as const, "exclude", "qc"),
+  /**
+   * Invented flights (Flight.synthetic, e.g. the demo): "auto" leaves them out whenever the viewer
+   * can see a real flight and takes them (counted as invented) when there is nothing else.
+   */
+  invented: enumWithDefault(["auto", "include", "exclude"] as const, "auto", "invented"),
   minCoverageKm: optionalNumber("minCoverageKm (minimum vertical coverage)", 0, 60),
   metric: enumWithDefault(CLIMATOLOGY_METRICS, "tropospheric-lapse-rate", "metric"),
   bandBaseKm: optionalNumber("bandBaseKm", -0.5, 60),
@@ -359,6 +364,7 @@ export function climatologySearchParams(query: ClimatologyQuery, raw: Record<str
   set("elevationTo", query.elevationTo);
   if (query.phase !== "ascent") set("phase", query.phase);
   if (query.qc !== "exclude") set("qc", query.qc);
+  if (query.invented !== "auto") set("invented", query.invented);
   set("minCoverageKm", query.minCoverageKm);
   set("metric", query.metric);
   if (query.metric === "band-lapse-rate") {

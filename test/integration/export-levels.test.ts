@@ -32,12 +32,15 @@ describe.each(testEngines())("levels CSV fast path on %s", (engine) => {
     const ids = await setUpSchool(database.db, "Fast Path School");
     for (const seed of [31, 32, 33]) {
       const f = makeFlightFile({ seed });
+      // One flight of the three is stored as invented: its rows carry synthetic = true.
+      const synthetic = seed === 32;
       const result = await ingestFlightFile(database.db, {
         file: { name: `flight-${seed}.csv`, bytes: f.bytes },
         metadata: { schoolId: ids.school.id, siteId: ids.site.id, layoutId: ids.layout.id, sensorId: ids.sensor.id, launchAtUtc: f.launchAtUtc.toISOString() },
+        synthetic,
       });
       const run = await database.db.analysisRun.findFirstOrThrow({ where: { flightId: result.flightId, isCurrent: true }, select: { id: true } });
-      runs.push({ flightId: result.flightId, runId: run.id });
+      runs.push({ flightId: result.flightId, runId: run.id, synthetic });
     }
     // Put the awkward numbers into the first run's level cells (not the altitude, which orders the rows).
     const levels = await database.db.profileLevel.findMany({ where: { runId: runs[0]?.runId }, orderBy: { id: "asc" }, take: AWKWARD.length });
@@ -64,7 +67,7 @@ describe.each(testEngines())("levels CSV fast path on %s", (engine) => {
         const tuples = await reader.read([run.runId]);
         expect(tuples.length).toBeGreaterThan(100);
         for (const t of tuples) {
-          const row = { flightId: run.flightId, runId: t[0], phase: t[1], altitudeM: t[2], baseM: t[3], topM: t[4], sampleCount: t[5], temperatureK: t[6], temperatureSdK: t[7], pressureHpa: t[8], relativeHumidityPct: t[9] };
+          const row = { flightId: run.flightId, synthetic: run.synthetic, runId: t[0], phase: t[1], altitudeM: t[2], baseM: t[3], topM: t[4], sampleCount: t[5], temperatureK: t[6], temperatureSdK: t[7], pressureHpa: t[8], relativeHumidityPct: t[9] };
           expected += csvLine(LEVELS_TABLE.fields.map((f) => f.get(row) as number | string | null));
         }
       }

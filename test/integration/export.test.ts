@@ -118,7 +118,7 @@ describe.each(testEngines())("export on %s", (engine) => {
 
     // Levels: row for row, bit for bit.
     const levelRows = csvRecords(files["data/levels.csv"]);
-    const dbLevels = await db.profileLevel.findMany({ where: { run: { isCurrent: true } }, include: { run: { select: { flightId: true } } } });
+    const dbLevels = await db.profileLevel.findMany({ where: { run: { isCurrent: true } }, include: { run: { select: { flightId: true, flight: { select: { synthetic: true } } } } } });
     expect(levelRows.length).toBe(dbLevels.length);
     expect(descriptor.lapsebank.rowCounts.levels).toBe(dbLevels.length);
     const byKey = new Map(dbLevels.map((l) => [`${l.runId}|${l.phase}|${l.altitudeM}`, l]));
@@ -128,28 +128,28 @@ describe.each(testEngines())("export on %s", (engine) => {
       expect(level, `level ${row.runId} ${row.altitudeM}`).toBeDefined();
       if (!level) continue;
       for (const field of LEVELS_TABLE.fields) {
-        const value = field.get({ ...level, flightId: level.run.flightId });
+        const value = field.get({ ...level, flightId: level.run.flightId, synthetic: level.run.flight.synthetic });
         expect(Object.is(readCell(field.type, row[field.name]), stored(value)) || readCell(field.type, row[field.name]) === stored(value), field.name).toBe(true);
       }
     }
 
     // Layers by id, every field.
     const layerRows = csvRecords(files["data/layers.csv"]);
-    const dbLayers = await db.layerStat.findMany({ where: { run: { isCurrent: true } }, include: { run: { select: { flightId: true } } } });
+    const dbLayers = await db.layerStat.findMany({ where: { run: { isCurrent: true } }, include: { run: { select: { flightId: true, flight: { select: { synthetic: true } } } } } });
     expect(layerRows.length).toBe(dbLayers.length);
     for (const row of layerRows) {
       const layer = dbLayers.find((l) => l.id === row.layerId);
       expect(layer).toBeDefined();
       if (!layer) continue;
-      for (const field of LAYERS_TABLE.fields) expect(readCell(field.type, row[field.name]), field.name).toEqual(stored(field.get({ ...layer, flightId: layer.run.flightId })));
+      for (const field of LAYERS_TABLE.fields) expect(readCell(field.type, row[field.name]), field.name).toEqual(stored(field.get({ ...layer, flightId: layer.run.flightId, synthetic: layer.run.flight.synthetic })));
     }
 
     // Runs by id, every field: the site values each run was analysed with among them.
     const runRows = csvRecords(files["data/runs.csv"]);
     for (const row of runRows) {
-      const runRow = await db.analysisRun.findUniqueOrThrow({ where: { id: row.runId ?? "" } });
+      const { flight, ...runRow } = await db.analysisRun.findUniqueOrThrow({ where: { id: row.runId ?? "" }, include: { flight: { select: { synthetic: true } } } });
       expect(runRow.siteLatitudeDeg).not.toBeNull();
-      for (const field of RUNS_TABLE.fields) expect(readCell(field.type, row[field.name]), field.name).toEqual(stored(field.get(runRow)));
+      for (const field of RUNS_TABLE.fields) expect(readCell(field.type, row[field.name]), field.name).toEqual(stored(field.get({ ...runRow, synthetic: flight.synthetic })));
     }
 
     // Foreign keys hold inside the package.

@@ -38,7 +38,22 @@ describe("parseClimatologyQuery", () => {
     const parsed = parseClimatologyQuery({});
     expect(parsed.ok).toBe(true);
     if (!parsed.ok) return;
-    expect(parsed.query).toMatchObject({ metric: "tropospheric-lapse-rate", groupBy: "season", phase: "ascent", qc: "exclude", claim: "none", school: [], site: [] });
+    expect(parsed.query).toMatchObject({ metric: "tropospheric-lapse-rate", groupBy: "season", phase: "ascent", qc: "exclude", invented: "auto", claim: "none", school: [], site: [] });
+  });
+
+  test("the invented-flights rule is auto by default, kept in the URL only when changed, and checked", () => {
+    for (const invented of ["include", "exclude"] as const) {
+      const parsed = parseClimatologyQuery({ invented });
+      if (!parsed.ok) throw new Error("refused");
+      expect(parsed.query.invented).toBe(invented);
+      expect(climatologySearchParams(parsed.query).get("invented")).toBe(invented);
+    }
+    const auto = parseClimatologyQuery({ invented: "auto" });
+    if (!auto.ok) throw new Error("refused");
+    expect(climatologySearchParams(auto.query).has("invented")).toBe(false);
+    const bad = parseClimatologyQuery({ invented: "maybe" });
+    expect(bad.ok).toBe(false);
+    if (!bad.ok) expect(bad.fieldErrors.invented?.join(" ")).toMatch(/invented must be one of: auto, include, exclude/);
   });
 
   test.each([

@@ -134,6 +134,14 @@ export function ClimatologyQueryForm({
               <option value="include">Include them</option>
             </select>
           </div>
+          <div className="field">
+            <label htmlFor="c-invented">Invented (demo) flights</label>
+            <select id="c-invented" name="invented" defaultValue={values.invented ?? "auto"}>
+              <option value="auto">Leave out when real flights exist</option>
+              <option value="include">Include them</option>
+              <option value="exclude">Always leave them out</option>
+            </select>
+          </div>
         </div>
       </fieldset>
       <fieldset>

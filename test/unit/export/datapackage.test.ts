@@ -20,6 +20,7 @@ function facts(overrides: Partial<PackageFacts> = {}): PackageFacts {
     analysisParameterSets: [{ binSizeM: 100 }],
     calibrationIds: ["c1"],
     flightCount: 2,
+    inventedFlightCount: 0,
     includesRawFiles: true,
     resources: TABLES.map((table) => ({ table, path: `data/${table.name}.csv`, bytes: 10, sha256: "ab".repeat(32), rowCount: 1 })),
     ...overrides,
@@ -110,5 +111,19 @@ describe("CITATION.cff and README", () => {
     for (const t of TABLES) expect(text).toContain(`data/${t.name}.csv`);
     expect(text).toContain("CC-BY-4.0");
     expect(text).toContain("remove exactly one leading '");
+  });
+
+  test("invented flights are named as such in datapackage.json, CITATION.cff and the README; real-only packages say nothing", () => {
+    const some = facts({ inventedFlightCount: 1 });
+    const all = facts({ inventedFlightCount: 2 });
+    const descriptor = dataPackageDescriptor(some) as { description: string; lapsebank: { inventedFlightCount: number } };
+    expect(descriptor.description).toContain("1 of the 2 flights in this export is INVENTED");
+    expect(descriptor.lapsebank.inventedFlightCount).toBe(1);
+    const validate = frictionlessValidator();
+    expect(validate(descriptor), JSON.stringify(validate.errors)).toBe(true);
+    expect(citationCff(all)).toMatch(/^abstract: "A query\. All 2 flights in this export are INVENTED .*synthetic = true.*"$/m);
+    expect(citationCff(all)).toContain(`  - "invented data"`);
+    expect(readmeText(some)).toContain("**Invented data.** 1 of the 2 flights in this export is INVENTED");
+    for (const text of [citationCff(facts()), readmeText(facts()), JSON.stringify(dataPackageDescriptor(facts()))]) expect(text).not.toMatch(/INVENTED|invented data|inventedFlightCount":[1-9]/);
   });
 });
