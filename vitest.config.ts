@@ -1,12 +1,24 @@
 import { defineConfig } from "vitest/config";
+import { BaseSequencer, type TestSpecification } from "vitest/node";
 import { fileURLToPath } from "node:url";
 
 const root = fileURLToPath(new URL(".", import.meta.url));
+
+/**
+ * Test files run in alphabetical order, always: the e2e files share one app and database, and the upload test
+ * (last) adds real flights, after which Climatology leaves the invented demo flights out by default.
+ */
+class AlphabeticalSequencer extends BaseSequencer {
+  override async sort(files: TestSpecification[]): Promise<TestSpecification[]> {
+    return [...files].sort((a, b) => a.moduleId.localeCompare(b.moduleId));
+  }
+}
 
 export default defineConfig({
   resolve: { alias: { "@": root, "server-only": `${root}test/support/server-only-stub.ts` } },
   test: {
     reporters: ["default", "./test/support/summary-reporter.ts"],
+    sequence: { sequencer: AlphabeticalSequencer },
     projects: [
       {
         extends: true,
