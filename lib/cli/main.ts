@@ -6,6 +6,7 @@ import { getEnv } from "../env.ts";
 import type { ReprocessSelection } from "../ingest/index.ts";
 import { EXPORT_HELP } from "./export-help.ts";
 import { readUploadFile } from "./read-upload-file.ts";
+import { isSetupCommand, SETUP_COMMANDS, SETUP_COMMANDS_HELP } from "./setup-help.ts";
 import { z } from "zod";
 
 // Each command loads only the modules it needs (the database client, ingest pipeline, demo
@@ -29,6 +30,7 @@ Commands:
   demo remove                  delete exactly the demo flights and the demo setup nothing else uses
   reset [--yes]                delete every row of the database, leaving it empty (asks for --yes);
                                also the way out of an interrupted restore
+${SETUP_COMMANDS_HELP}
   ingest <files...>            upload logger files through the same pipeline as the web
       --school ID --site ID --layout ID [--sensor ID] [--payload ID] [--calibration ID]
       [--launch ISO-8601] [--visibility school|program|public] [--lenient] [--title TEXT]
@@ -45,7 +47,7 @@ ${EXPORT_HELP}
 DATABASE_URL chooses the database: file:./data/lapsebank.db (default, SQLite) or postgres://...`;
 
 /** Commands that read or write the archive: refused while an interrupted restore is unresolved. */
-const SERVING_COMMANDS = new Set(["demo", "ingest", "backup", "reprocess", "admin"]);
+const SERVING_COMMANDS = new Set<string>(["demo", "ingest", "backup", "reprocess", "admin", ...SETUP_COMMANDS]);
 
 async function main(argv: string[]): Promise<number> {
   const [command, ...rest] = argv;
@@ -58,6 +60,10 @@ async function main(argv: string[]): Promise<number> {
       console.error(problem);
       return 1;
     }
+  }
+  if (isSetupCommand(command)) {
+    const { runSetupCommand } = await import("./setup-commands.ts");
+    return runSetupCommand((await getDbHandle()).db, command, rest);
   }
   switch (command) {
     case "migrate":
