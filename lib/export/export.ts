@@ -1,6 +1,6 @@
 /**
  * Exports as byte streams: one CSV table, one JSON document with every table and its data
- * dictionary, or a zip data package (CSV tables, datapackage.json, CITATION.cff, README, optional
+ * dictionary, a NetCDF-4/CF profile collection (netcdf.ts), or a zip data package (CSV tables, datapackage.json, CITATION.cff, README, optional
  * raw files). Validation and the choice of flights happen before the first byte, so callers can
  * answer 4xx; the body is then produced as the consumer reads it (pull-driven async generator),
  * a page of flights at a time, so memory stays flat however large the export.
@@ -12,6 +12,7 @@ import type { Viewer } from "../auth/visibility.ts";
 import { csvCell, csvLine, formatNumberCell } from "./csv.ts";
 import { NativeDeflateEntry, ZipQueue } from "./zip-queue.ts";
 import { openLevelReader } from "./level-reader.ts";
+import { netcdfChunks, writeNetcdfFile } from "./netcdf.ts";
 import { levelCsvPages, type CsvPage, type RunOfFlight } from "./level-csv.ts";
 import { citationCff, dataPackageDescriptor, inventedDataSentence, readmeText, tableSchema, type PackageFacts, type ResourceFacts } from "./package-metadata.ts";
 import {
@@ -273,6 +274,13 @@ export async function createExport(handle: DbLike, viewer: Viewer, record: Recor
     }
     case "package":
       return { fileName: `${base}.zip`, contentType: "application/zip", options, scope, body: packageChunks(handle, viewer, scope, options, now, pageSize) };
+    case "netcdf": {
+      const write = async (filePath: string) => {
+        const facts = { title: options.title ?? defaultTitle(scope, now), programName: await programName(handle.db), lapsebankVersion: LAPSEBANK_VERSION, createdAtUtc: now, licence: licenceById(options.licence) };
+        return writeNetcdfFile(filePath, handle.db, viewer, scope, facts, openLevelReader(handle), pageSize);
+      };
+      return { fileName: `${base}.nc`, contentType: "application/x-netcdf", options, scope, body: netcdfChunks(write) };
+    }
   }
 }
 
