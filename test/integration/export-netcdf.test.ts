@@ -14,6 +14,8 @@ import { ingestFlightFile } from "../../lib/ingest/index.ts";
 import { createExport } from "../../lib/export/export.ts";
 import { NETCDF_FILL_VALUE } from "../../lib/export/netcdf.ts";
 import { LOCAL_VIEWER, type Viewer } from "../../lib/auth/visibility.ts";
+import { getClimatology } from "../../lib/query/climatology-core.ts";
+import { parseClimatologyQuery } from "../../lib/query/climatology-params.ts";
 import { makeFlightFile, setUpSchool } from "../support/flight-files.ts";
 import { createTestDatabase, testEngines, type TestDatabase } from "../support/test-databases.ts";
 import { lapsebankNodeArgs } from "../support/lapsebank-command.ts";
@@ -199,6 +201,21 @@ describe.each(testEngines())("NetCDF export on %s", (engine) => {
     expect(dump).not.toContain(flights.school);
     expect(dump).not.toContain(":invented_data");
     expect(dump).toContain(":lapsebank_invented_flight_count = 0 ;");
+  });
+
+  test("a Climatology export holds the query's flights, with the query and its groups in the global attributes", async () => {
+    const query = { metric: "tropospheric-lapse-rate", groupBy: "school", qc: "include" };
+    const parsed = parseClimatologyQuery(query);
+    if (!parsed.ok) throw new Error(parsed.message);
+    const result = await getClimatology(LOCAL_VIEWER, { ...parsed.query, flights: "all" }, database, { profiles: false });
+    const expected = result.groups.flatMap((g) => g.flights.map((f) => f.flightId));
+    expect(expected.length).toBeGreaterThan(0);
+    const { file } = await exportTo(LOCAL_VIEWER, "climatology.nc", { source: "climatology", ...query });
+    const dump = ncdump(file, ["-v", "flight_id"]);
+    expect(dump).toContain(`flight_id = ${expected.map((id) => `"${id}"`).join(", ")} ;`);
+    expect(dump).toMatch(/:lapsebank_query = "Climatology query: [^"]+" ;/);
+    expect(dump).toContain(':lapsebank_query_groups = "[{');
+    expect(dump).toMatch(/:lapsebank_query_page = "\/climatology\?[^"]*metric=tropospheric-lapse-rate/);
   });
 
   test("an empty selection writes a valid file with no profiles", async () => {
