@@ -12,7 +12,6 @@ import type { Viewer } from "../auth/visibility.ts";
 import { csvCell, csvLine, formatNumberCell } from "./csv.ts";
 import { NativeDeflateEntry, ZipQueue } from "./zip-queue.ts";
 import { openLevelReader } from "./level-reader.ts";
-import { netcdfChunks, writeNetcdfFile } from "./netcdf.ts";
 import { levelCsvPages, type CsvPage, type RunOfFlight } from "./level-csv.ts";
 import { citationCff, dataPackageDescriptor, inventedDataSentence, readmeText, tableSchema, type PackageFacts, type ResourceFacts } from "./package-metadata.ts";
 import {
@@ -275,6 +274,8 @@ export async function createExport(handle: DbLike, viewer: Viewer, record: Recor
     case "package":
       return { fileName: `${base}.zip`, contentType: "application/zip", options, scope, body: packageChunks(handle, viewer, scope, options, now, pageSize) };
     case "netcdf": {
+      // Loaded on demand: the other formats (and the heap-capped CLI worker) never load the HDF5 module.
+      const { netcdfChunks, writeNetcdfFile } = await import("./netcdf.ts");
       const write = async (filePath: string) => {
         const facts = { title: options.title ?? defaultTitle(scope, now), programName: await programName(handle.db), lapsebankVersion: LAPSEBANK_VERSION, createdAtUtc: now, licence: licenceById(options.licence) };
         return writeNetcdfFile(filePath, handle.db, viewer, scope, facts, openLevelReader(handle), pageSize);

@@ -17,7 +17,6 @@
 import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
-import h5wasm from "h5wasm/node";
 import type { Dataset, File as H5File, Group } from "h5wasm/node";
 import type { Db } from "../db/index.ts";
 import type { Viewer } from "../auth/visibility.ts";
@@ -108,6 +107,8 @@ export async function writeNetcdfFile(
   reader: LevelReader,
   pageSize: number,
 ): Promise<{ profiles: number; observations: number }> {
+  // Loaded here, not at the top: only a NetCDF export needs the 4 MB HDF5 module.
+  const { default: h5wasm } = await import("h5wasm/node");
   await h5wasm.ready;
   const file = new h5wasm.File(filePath, "w", { track_order: true });
   try {
