@@ -9,7 +9,8 @@ const nextConfig = {
   // Responses are not gzipped here: that is the TLS reverse proxy's job on a shared server (see
   // README), and on one machine it only costs the app process CPU (about 5 % of a busy server's).
   compress: false,
-  serverExternalPackages: ["better-sqlite3", "pg", "@prisma/adapter-better-sqlite3", "@prisma/adapter-pg", "csv-parse"],
+  // h5wasm (NetCDF export) is a 4 MB Emscripten module that finds its own files at run time: loaded from node_modules, not bundled.
+  serverExternalPackages: ["better-sqlite3", "pg", "@prisma/adapter-better-sqlite3", "@prisma/adapter-pg", "csv-parse", "h5wasm"],
   experimental: {
     serverActions: { bodySizeLimit: `${Math.ceil(maxUploadMb) + 1}mb` },
     // proxy.ts sees only server-action posts not marked same-origin by the browser (forgeries, and

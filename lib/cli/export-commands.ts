@@ -1,6 +1,6 @@
 /**
  * CLI commands for exports and whole-archive backups:
- *   export [--source archive|flight|climatology] [--format csv|json|package] [--table NAME] [--raw]
+ *   export [--source archive|flight|climatology] [--format csv|json|package|netcdf] [--table NAME] [--raw]
  *          [--licence ID] [--title TEXT] [--flight ID] [--query "k=v&k=v"] [--out FILE]
  *   backup <file>      restore <file>
  * The CLI acts as the local user (sees every flight), like the other commands.

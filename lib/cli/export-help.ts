@@ -1,7 +1,7 @@
 /** Help text of the export, backup and restore commands (its own module so `help` loads no export code). */
 export const EXPORT_HELP = `  export [options]             write a dataset (CSV table, JSON, or zip data package)
       --source archive|flight|climatology   (default archive)
-      --format csv|json|package             (default package)
+      --format csv|json|package|netcdf      (default package; netcdf: NetCDF-4/CF profiles, .nc)
       --table flights|runs|layers|levels|calibrations|raw-files|query-values   (CSV only; default flights)
       --raw                                 include the raw logger files (package only)
       --licence CC-BY-4.0|CC0-1.0|CC-BY-SA-4.0|ODC-By-1.0|ODbL-1.0   (default CC-BY-4.0)

@@ -61,6 +61,11 @@ if (!isMainThread && workerData?.role === "lapsebank-export") {
   // held about 70 MB while the export ran. The baseline code is fast enough for the few queries
   // an export plans, so the second compile is turned off (a compile-time flag: set before Prisma loads).
   setFlagsFromString("--liftoff-only");
+  // A NetCDF export writes with h5wasm, whose 4 MB generated module took more than the capped heap
+  // when it passed through tsx's loader (measured: over 96 MB, under 128). Loaded here first, by
+  // Node's own loader, it costs about 14 MB; the export's later import finds it in the module cache.
+  const args = workerData.args;
+  if (args.some((a, i) => a === "--format=netcdf" || (a === "--format" && args[i + 1] === "netcdf"))) await import("h5wasm/node");
   const { register } = await import("tsx/esm/api");
   register();
   const [{ runExport }, { getDbHandle }] = await Promise.all([import("./export-commands.ts"), import("../db/index.ts")]);

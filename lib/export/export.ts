@@ -1,6 +1,6 @@
 /**
  * Exports as byte streams: one CSV table, one JSON document with every table and its data
- * dictionary, or a zip data package (CSV tables, datapackage.json, CITATION.cff, README, optional
+ * dictionary, a NetCDF-4/CF profile collection (netcdf.ts), or a zip data package (CSV tables, datapackage.json, CITATION.cff, README, optional
  * raw files). Validation and the choice of flights happen before the first byte, so callers can
  * answer 4xx; the body is then produced as the consumer reads it (pull-driven async generator),
  * a page of flights at a time, so memory stays flat however large the export.
@@ -273,6 +273,15 @@ export async function createExport(handle: DbLike, viewer: Viewer, record: Recor
     }
     case "package":
       return { fileName: `${base}.zip`, contentType: "application/zip", options, scope, body: packageChunks(handle, viewer, scope, options, now, pageSize) };
+    case "netcdf": {
+      // Loaded on demand: the other formats (and the heap-capped CLI worker) never load the HDF5 module.
+      const { netcdfChunks, writeNetcdfFile } = await import("./netcdf.ts");
+      const write = async (filePath: string) => {
+        const facts = { title: options.title ?? defaultTitle(scope, now), programName: await programName(handle.db), lapsebankVersion: LAPSEBANK_VERSION, createdAtUtc: now, licence: licenceById(options.licence) };
+        return writeNetcdfFile(filePath, handle.db, viewer, scope, facts, openLevelReader(handle), pageSize);
+      };
+      return { fileName: `${base}.nc`, contentType: "application/x-netcdf", options, scope, body: netcdfChunks(write) };
+    }
   }
 }
 

@@ -1,6 +1,6 @@
 /**
  * The one schema for an export request: where the flights come from (Archive filter, one flight,
- * a Climatology query or claim check), the format, which table (CSV), raw files and licence.
+ * a Climatology query or claim check), the format (CSV, JSON, zip data package, NetCDF-4/CF), which table (CSV), raw files and licence.
  * The export's own keys never clash with the Archive's or the Climatology's search params, so the
  * query's parameters travel alongside unchanged: /api/v1/export?source=climatology&format=package&<query>.
  * Pure: no database, no environment.
@@ -8,7 +8,7 @@
 import { z } from "zod";
 import { TABLE_NAMES, type TableName } from "./tables.ts";
 
-export const EXPORT_FORMATS = ["csv", "json", "package"] as const;
+export const EXPORT_FORMATS = ["csv", "json", "package", "netcdf"] as const;
 export type ExportFormat = (typeof EXPORT_FORMATS)[number];
 
 export const EXPORT_SOURCES = ["archive", "flight", "climatology"] as const;

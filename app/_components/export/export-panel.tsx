@@ -23,11 +23,11 @@ export interface ExportPanelProps {
 }
 
 /**
- * The Export panel: format (CSV table, JSON, zip data package), raw files, licence and title.
+ * The Export panel: format (CSV table, JSON, zip data package, NetCDF-4/CF), raw files, licence and title.
  * A plain GET form to /api/v1/export, so the browser downloads the streamed file itself.
  */
 export function ExportPanel({ source, query = {}, flightId, flightCount }: ExportPanelProps) {
-  const [format, setFormat] = useState<"package" | "csv" | "json">("package");
+  const [format, setFormat] = useState<"package" | "csv" | "json" | "netcdf">("package");
   const id = useId();
   const hidden = Object.entries(query).filter(([key]) => !["source", "format", "table", "raw", "licence", "title", "flight", "page", "pageSize", "sort"].includes(key));
   return (
@@ -51,6 +51,9 @@ export function ExportPanel({ source, query = {}, flightId, flightCount }: Expor
           </label>
           <label>
             <input type="radio" name="format" value="json" checked={format === "json"} onChange={() => setFormat("json")} /> JSON (every table and its data dictionary)
+          </label>
+          <label>
+            <input type="radio" name="format" value="netcdf" checked={format === "netcdf"} onChange={() => setFormat("netcdf")} /> NetCDF-4 (CF profiles: one per flight, its ascent levels and summary; opens in netCDF tools)
           </label>
         </fieldset>
         {format === "csv" && (

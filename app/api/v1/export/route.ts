@@ -8,7 +8,7 @@ export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
 /**
- * GET /api/v1/export?source=archive|flight|climatology&format=csv|json|package&table=&raw=yes&licence=&title=&flight=
+ * GET /api/v1/export?source=archive|flight|climatology&format=csv|json|package|netcdf&table=&raw=yes&licence=&title=&flight=
  * plus the source page's own parameters (Archive filter or Climatology query), unchanged. Streams
  * the file as it is produced; only flights the requester may see are included.
  */
