@@ -1,6 +1,9 @@
 import { z } from "zod";
 import { parseTrustedProxy } from "./auth/trusted-proxy.ts";
 
+/** An on/off switch: exactly "1" turns it on; unset or anything else leaves it off. */
+const flag = z.string().optional().transform((value) => value === "1");
+
 /** Environment, validated once. Pure modules (lib/analysis, lib/stats) never import this. */
 const envSchema = z.object({
   DATABASE_URL: z
@@ -30,6 +33,18 @@ const envSchema = z.object({
   PORT: z.coerce.number().int().positive().default(3000),
   /** Address `npm start` listens on; unset: 127.0.0.1 while no account exists, else every interface. */
   LAPSEBANK_HOST: z.string().trim().optional().transform((value) => value || undefined),
+  /** The generic listen address some hosts set; LAPSEBANK_HOST wins over it. */
+  HOST: z.string().trim().optional().transform((value) => value || undefined),
+  /** "1": session cookies without the Secure flag in production (a plain-http school network). */
+  LAPSEBANK_INSECURE_COOKIES: flag,
+  /** "1": `npm start` never loads the demo archive into an empty database. */
+  LAPSEBANK_SKIP_DEMO: flag,
+  /** "1": `npm start` rebuilds the web app even when the build looks current. */
+  LAPSEBANK_REBUILD: flag,
+  /** Upload token for `lapsebank ingest --server` when --token is not given. */
+  LAPSEBANK_TOKEN: z.string().optional().transform((value) => value || undefined),
+  /** Password for `lapsebank admin create` (else the first line of stdin). */
+  LAPSEBANK_ADMIN_PASSWORD: z.string().optional().transform((value) => value || undefined),
 });
 
 export type Env = z.infer<typeof envSchema>;

@@ -57,14 +57,6 @@ export function formatUtc(iso: string): string {
   return `${iso.slice(0, 10)} ${iso.slice(11, 16)} UTC`;
 }
 
-/** Local wall-clock time at the site, "08:30", from an instant and an IANA time zone. */
-export function formatLocalTime(iso: string, timeZone: string): string {
-  try {
-    return new Intl.DateTimeFormat("en-GB", { timeZone, hour: "2-digit", minute: "2-digit", hourCycle: "h23" }).format(new Date(iso));
-  } catch {
-    return "—";
-  }
-}
 
 /** Local date and time at the site, "2025-07-14 08:30". */
 export function formatLocalDateTime(iso: string, timeZone: string): string {

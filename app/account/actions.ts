@@ -23,7 +23,7 @@ async function startSession(sessionSecret: string, expiresAt: Date) {
   (await cookies()).set(SESSION_COOKIE, sessionSecret, {
     httpOnly: true,
     sameSite: "lax",
-    secure: getEnv().NODE_ENV === "production" && process.env.LAPSEBANK_INSECURE_COOKIES !== "1",
+    secure: getEnv().NODE_ENV === "production" && !getEnv().LAPSEBANK_INSECURE_COOKIES,
     path: "/",
     expires: expiresAt,
   });

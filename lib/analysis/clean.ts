@@ -4,6 +4,14 @@
  * out-of-range rows, GPS jumps and temperature spikes. Every removal is counted.
  */
 import { calibrateReadingOrNaN } from "./calibration";
+import { float64At, int32At, valueAt } from "./typed-arrays";
+
+/** `valueAt` for the input rows: a read of its own keeps its element kind (objects) specialised. */
+function sampleAt(samples: readonly RawSample[], index: number): RawSample {
+  const sample = samples[index];
+  if (sample === undefined) throw new RangeError(`row ${index} is outside 0…${samples.length - 1}`);
+  return sample;
+}
 import { altitudeJumpMask, detectAlternatingTemperature, detectStuckTemperature, hampelSpikeMask } from "./filters";
 import { integrateHypsometricAltitudesM } from "./altitude";
 import { standardAtmosphereAltitudeForPressureM } from "./standard-atmosphere";
@@ -63,7 +71,7 @@ function compact(series: CleanSeries, kept: Int32Array): CleanSeries {
 
 function gather(values: Float64Array, indices: Int32Array): Float64Array {
   const out = new Float64Array(indices.length);
-  for (let i = 0; i < indices.length; i++) out[i] = values[indices[i] as number] as number;
+  for (let i = 0; i < indices.length; i++) out[i] = float64At(values, int32At(indices, i));
   return out;
 }
 
@@ -80,7 +88,7 @@ function filterIndices(indices: Int32Array, drop: Uint8Array): Int32Array {
   let m = 0;
   for (let i = 0; i < indices.length; i++) if (drop[i] === 0) m++;
   const out = new Int32Array(m);
-  for (let i = 0, k = 0; i < indices.length; i++) if (drop[i] === 0) out[k++] = indices[i] as number;
+  for (let i = 0, k = 0; i < indices.length; i++) if (drop[i] === 0) out[k++] = int32At(indices, i);
   return out;
 }
 
@@ -106,14 +114,14 @@ export function cleanSamples(
 
   const timed: number[] = [];
   for (let i = 0; i < samples.length; i++) {
-    if (Number.isFinite((samples[i] as RawSample).elapsedS)) timed.push(i);
+    if (Number.isFinite(sampleAt(samples, i).elapsedS)) timed.push(i);
     else removed.missingValues++;
   }
   let monotonic = true;
   let strictlyIncreasing = true;
   for (let k = 1; k < timed.length; k++) {
-    const prev = (samples[timed[k - 1] as number] as RawSample).elapsedS;
-    const cur = (samples[timed[k] as number] as RawSample).elapsedS;
+    const prev = sampleAt(samples, valueAt(timed, k - 1)).elapsedS;
+    const cur = sampleAt(samples, valueAt(timed, k)).elapsedS;
     if (cur <= prev) strictlyIncreasing = false;
     if (cur < prev) {
       monotonic = false;
@@ -123,8 +131,8 @@ export function cleanSamples(
   // Sorting (with ties broken by source line) only when needed keeps the common case fast and
   // makes the kept row of a duplicated time independent of the input order.
   const order = strictlyIncreasing ? timed : timed.slice().sort((a, b) => {
-    const sa = samples[a] as RawSample;
-    const sb = samples[b] as RawSample;
+    const sa = sampleAt(samples, a);
+    const sb = sampleAt(samples, b);
     return sa.elapsedS - sb.elapsedS || num(sa.sourceLine) - num(sb.sourceLine) || a - b;
   });
   if (!monotonic) {
@@ -134,7 +142,7 @@ export function cleanSamples(
   const unique: number[] = [];
   for (const idx of order) {
     const prev = unique[unique.length - 1];
-    if (prev !== undefined && (samples[prev] as RawSample).elapsedS === (samples[idx] as RawSample).elapsedS) removed.duplicateTimes++;
+    if (prev !== undefined && sampleAt(samples, prev).elapsedS === sampleAt(samples, idx).elapsedS) removed.duplicateTimes++;
     else unique.push(idx);
   }
   if (removed.duplicateTimes > 0) {
@@ -156,7 +164,7 @@ export function cleanSamples(
   let implausibleAltitudes = 0;
   let firstImplausibleLine = 0;
   for (let k = 0; k < n; k++) {
-    const s = samples[unique[k] as number] as RawSample;
+    const s = sampleAt(samples, valueAt(unique, k));
     elapsedS[k] = s.elapsedS;
     sourceLine[k] = Number.isFinite(s.sourceLine) ? s.sourceLine : 0;
     const raw = num(s.rawTemperature);
@@ -174,7 +182,7 @@ export function cleanSamples(
     gpsM[k] = z >= ALTITUDE_RANGE_M.min && z <= ALTITUDE_RANGE_M.max ? z : Number.NaN;
     if (gpsM[k] === gpsM[k]) gpsCount++;
     else if (z === z) {
-      if (implausibleAltitudes === 0) firstImplausibleLine = sourceLine[k] as number;
+      if (implausibleAltitudes === 0) firstImplausibleLine = float64At(sourceLine, k);
       implausibleAltitudes++;
     }
   }
@@ -198,15 +206,15 @@ export function cleanSamples(
   if (hasPressure && gpsCount < n) {
     let anchor = -1;
     for (let k = 0; k < n; k++) {
-      if ((pressureHpa[k] as number) > 0 && (temperatureK[k] as number) > 0) {
+      if (float64At(pressureHpa, k) > 0 && float64At(temperatureK, k) > 0) {
         anchor = k;
         break;
       }
     }
     let anchorM = site.elevationM;
     if (anchor >= 0) {
-      const gps = gpsM[anchor] as number;
-      const standardM = standardAtmosphereAltitudeForPressureM(pressureHpa[anchor] as number);
+      const gps = float64At(gpsM, anchor);
+      const standardM = standardAtmosphereAltitudeForPressureM(float64At(pressureHpa, anchor));
       if (gps === gps) anchorM = gps;
       else if (standardM !== null && standardM > site.elevationM + 1000) {
         anchorM = standardM;
@@ -217,8 +225,8 @@ export function cleanSamples(
     let fromPressure = 0;
     for (let k = 0; k < n; k++) {
       if (altitudeM[k] === altitudeM[k]) continue;
-      let z = hypsometric[k] as number;
-      if (z !== z && pressureHpa[k] === pressureHpa[k]) z = standardAtmosphereAltitudeForPressureM(pressureHpa[k] as number) ?? Number.NaN;
+      let z = float64At(hypsometric, k);
+      if (z !== z && pressureHpa[k] === pressureHpa[k]) z = standardAtmosphereAltitudeForPressureM(float64At(pressureHpa, k)) ?? Number.NaN;
       if (z === z) {
         altitudeM[k] = z;
         fromPressure++;
@@ -232,9 +240,9 @@ export function cleanSamples(
 
   const keep = new Uint8Array(n);
   for (let k = 0; k < n; k++) {
-    const s = samples[unique[k] as number] as RawSample;
-    const t = temperatureK[k] as number;
-    const z = altitudeM[k] as number;
+    const s = sampleAt(samples, valueAt(unique, k));
+    const t = float64At(temperatureK, k);
+    const z = float64At(altitudeM, k);
     const rawZ = num(s.altitudeM);
     const tOut = t === t && (t < TEMPERATURE_RANGE_K.min || t > TEMPERATURE_RANGE_K.max);
     const zOut = z !== z && rawZ === rawZ && (rawZ < ALTITUDE_RANGE_M.min || rawZ > ALTITUDE_RANGE_M.max);
@@ -273,11 +281,11 @@ export function cleanSamples(
     flags.push("temperature-alternating");
     warnings.push({
       code: "temperature-alternating",
-      message: `The temperature jumps up and down by 10 K or more from one row to the next at ${alternating.zigzagCount} rows (first at line ${sourceLine[readings[alternating.firstIndex] as number]}; longest run ${alternating.longestRun}): the sensor or its wiring looks faulty. The flight is QC-flagged and no tropopause is reported.`,
+      message: `The temperature jumps up and down by 10 K or more from one row to the next at ${alternating.zigzagCount} rows (first at line ${sourceLine[int32At(readings, alternating.firstIndex)]}; longest run ${alternating.longestRun}): the sensor or its wiring looks faulty. The flight is QC-flagged and no tropopause is reported.`,
     });
   }
   if (kept.length >= 3) {
-    const line = (k: number): number => sourceLine[kept[k] as number] as number;
+    const line = (k: number): number => float64At(sourceLine, int32At(kept, k));
     const stuck = detectStuckTemperature(gather(altitudeM, kept), gather(temperatureK, kept));
     if (stuck) {
       flags.push("temperature-stuck");

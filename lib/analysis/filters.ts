@@ -1,4 +1,5 @@
 import { medianInPlace } from "./regression";
+import { float64At } from "./typed-arrays";
 
 /**
  * Robust glitch filters on time series held in typed arrays: a sliding median, the Hampel
@@ -23,39 +24,39 @@ export function rollingMedian(values: Float64Array, halfWindow: number): Float64
     // Once the window is full, one value leaves and one enters: overwrite the leaving value and
     // restore order by shifting (cheap for the small windows used here).
     while (lo < newLo && hi < newHi) {
-      const leaving = values[lo++] as number;
-      const entering = values[++hi] as number;
+      const leaving = float64At(values, lo++);
+      const entering = float64At(values, ++hi);
       let k = 0;
-      while ((window[k] as number) !== leaving) k++;
-      while (k > 0 && (window[k - 1] as number) > entering) {
-        window[k] = window[k - 1] as number;
+      while (float64At(window, k) !== leaving) k++;
+      while (k > 0 && float64At(window, k - 1) > entering) {
+        window[k] = float64At(window, k - 1);
         k--;
       }
-      while (k < size - 1 && (window[k + 1] as number) < entering) {
-        window[k] = window[k + 1] as number;
+      while (k < size - 1 && float64At(window, k + 1) < entering) {
+        window[k] = float64At(window, k + 1);
         k++;
       }
       window[k] = entering;
     }
     while (lo < newLo) {
-      const leaving = values[lo++] as number;
+      const leaving = float64At(values, lo++);
       let k = 0;
-      while ((window[k] as number) !== leaving) k++;
-      for (; k < size - 1; k++) window[k] = window[k + 1] as number;
+      while (float64At(window, k) !== leaving) k++;
+      for (; k < size - 1; k++) window[k] = float64At(window, k + 1);
       size--;
     }
     while (hi < newHi) {
-      const entering = values[++hi] as number;
+      const entering = float64At(values, ++hi);
       let k = size;
-      while (k > 0 && (window[k - 1] as number) > entering) {
-        window[k] = window[k - 1] as number;
+      while (k > 0 && float64At(window, k - 1) > entering) {
+        window[k] = float64At(window, k - 1);
         k--;
       }
       window[k] = entering;
       size++;
     }
     const mid = size >> 1;
-    out[i] = size % 2 === 1 ? (window[mid] as number) : ((window[mid - 1] as number) + (window[mid] as number)) / 2;
+    out[i] = size % 2 === 1 ? float64At(window, mid) : (float64At(window, mid - 1) + float64At(window, mid)) / 2;
   }
   return out;
 }
@@ -84,18 +85,18 @@ export function hampelSpikeMask(
   const medians = rollingMedian(values, h);
   const scratch = new Float64Array(2 * h + 1);
   for (let i = 0; i < n; i++) {
-    const deviation = Math.abs((values[i] as number) - (medians[i] as number));
+    const deviation = Math.abs(float64At(values, i) - float64At(medians, i));
     // Cheap rejection first: most samples sit within the floor and need no MAD.
     if (deviation <= minThreshold) continue;
     const lo = Math.max(0, i - h);
     const hi = Math.min(n - 1, i + h);
     const count = hi - lo + 1;
-    const med = medians[i] as number;
-    for (let j = lo; j <= hi; j++) scratch[j - lo] = Math.abs((values[j] as number) - med);
+    const med = float64At(medians, i);
+    for (let j = lo; j <= hi; j++) scratch[j - lo] = Math.abs(float64At(values, j) - med);
     const mad = medianInPlace(scratch, count);
     let step = Number.POSITIVE_INFINITY;
     for (let j = lo + 1; j <= hi; j++) {
-      const change = Math.abs((values[j] as number) - (values[j - 1] as number));
+      const change = Math.abs(float64At(values, j) - float64At(values, j - 1));
       if (change > 1e-9 && change < step) step = change;
     }
     const resolutionFloor = Number.isFinite(step) ? 3 * step : 0;
@@ -127,9 +128,9 @@ export function altitudeJumpMask(
   for (let i = 0; i < n; i++) {
     const lo = Math.max(0, i - h);
     const hi = Math.min(n - 1, i + h);
-    const t = elapsedS[i] as number;
-    const spanS = Math.max(t - (elapsedS[lo] as number), (elapsedS[hi] as number) - t);
-    if (Math.abs((altitudeM[i] as number) - (medians[i] as number)) > maxVerticalSpeedMPerS * spanS + noiseM) mask[i] = 1;
+    const t = float64At(elapsedS, i);
+    const spanS = Math.max(t - float64At(elapsedS, lo), float64At(elapsedS, hi) - t);
+    if (Math.abs(float64At(altitudeM, i) - float64At(medians, i)) > maxVerticalSpeedMPerS * spanS + noiseM) mask[i] = 1;
   }
   let last = -1;
   let run = 0;
@@ -139,8 +140,8 @@ export function altitudeJumpMask(
       last = i;
       continue;
     }
-    const dt = (elapsedS[i] as number) - (elapsedS[last] as number);
-    const dz = Math.abs((altitudeM[i] as number) - (altitudeM[last] as number));
+    const dt = float64At(elapsedS, i) - float64At(elapsedS, last);
+    const dz = Math.abs(float64At(altitudeM, i) - float64At(altitudeM, last));
     if (dz > maxVerticalSpeedMPerS * dt + noiseM && run < maxRun) {
       mask[i] = 1;
       run++;
@@ -237,13 +238,13 @@ export function detectStuckTemperature(
   let context: RecordContext | null = null;
   let best: StuckTemperatureSpan | null = null;
   for (let start = 0; start < n; ) {
-    const value = temperatureK[start] as number;
+    const value = float64At(temperatureK, start);
     let end = start;
-    let zMin = altitudeM[start] as number;
+    let zMin = float64At(altitudeM, start);
     let zMax = zMin;
-    while (end + 1 < n && Math.abs((temperatureK[end + 1] as number) - value) <= SAME_READING_K) {
+    while (end + 1 < n && Math.abs(float64At(temperatureK, end + 1) - value) <= SAME_READING_K) {
       end++;
-      const z = altitudeM[end] as number;
+      const z = float64At(altitudeM, end);
       if (z < zMin) zMin = z;
       if (z > zMax) zMax = z;
     }
@@ -272,7 +273,7 @@ function recordContext(temperatureK: Float64Array): RecordContext {
   let pairs = 0;
   let reversals = 0;
   for (let i = 1; i < temperatureK.length; i++) {
-    const change = (temperatureK[i] as number) - (temperatureK[i - 1] as number);
+    const change = float64At(temperatureK, i) - float64At(temperatureK, i - 1);
     if (Math.abs(change) <= SAME_READING_K) continue;
     if (previousChange !== 0) {
       pairs++;
@@ -283,7 +284,7 @@ function recordContext(temperatureK: Float64Array): RecordContext {
   const sorted = Float64Array.from(temperatureK).sort();
   let m = 0;
   for (let i = 0; i < sorted.length; i++) {
-    if (m === 0 || (sorted[i] as number) - (sorted[m - 1] as number) > SAME_READING_K) sorted[m++] = sorted[i] as number;
+    if (m === 0 || float64At(sorted, i) - float64At(sorted, m - 1) > SAME_READING_K) sorted[m++] = float64At(sorted, i);
   }
   return { pairs, reversals, distinctK: sorted.subarray(0, m) };
 }
@@ -294,11 +295,11 @@ function stepAt(distinctK: Float64Array, value: number): number {
   let hi = distinctK.length - 1;
   while (lo < hi) {
     const mid = (lo + hi) >> 1;
-    if ((distinctK[mid] as number) < value - SAME_READING_K) lo = mid + 1;
+    if (float64At(distinctK, mid) < value - SAME_READING_K) lo = mid + 1;
     else hi = mid;
   }
-  const below = lo > 0 ? value - (distinctK[lo - 1] as number) : Number.POSITIVE_INFINITY;
-  const above = lo + 1 < distinctK.length ? (distinctK[lo + 1] as number) - value : Number.POSITIVE_INFINITY;
+  const below = lo > 0 ? value - float64At(distinctK, lo - 1) : Number.POSITIVE_INFINITY;
+  const above = lo + 1 < distinctK.length ? float64At(distinctK, lo + 1) - value : Number.POSITIVE_INFINITY;
   return Math.min(below, above);
 }
 
@@ -316,7 +317,7 @@ function hiddenChange(
   // The run itself holds no change, so the record's reversal share is the rest's (up to the one
   // pair that straddles the run).
   if (context.pairs < options.minSamples || context.reversals < options.minReversalShare * context.pairs) return { stuck: false, changeK: null };
-  const value = temperatureK[start] as number;
+  const value = float64At(temperatureK, start);
   let changeK: number | null;
   if (end + 1 < n) {
     const resumed = Float64Array.from(temperatureK.subarray(end + 1, Math.min(n, end + 1 + RESUME_SAMPLES)));
@@ -331,16 +332,16 @@ function hiddenChange(
 
 /** Least-squares dT/dz (K/m) of the readings before index `start` within depthM below its altitude; null when too few. */
 function slopeBelow(altitudeM: Float64Array, temperatureK: Float64Array, start: number, depthM: number, minSamples: number): number | null {
-  const top = altitudeM[start] as number;
+  const top = float64At(altitudeM, start);
   let count = 0;
   let sumZ = 0;
   let sumT = 0;
   for (let i = 0; i < start; i++) {
-    const z = altitudeM[i] as number;
+    const z = float64At(altitudeM, i);
     if (z > top || z < top - depthM) continue;
     count++;
     sumZ += z;
-    sumT += temperatureK[i] as number;
+    sumT += float64At(temperatureK, i);
   }
   if (count < minSamples) return null;
   const meanZ = sumZ / count;
@@ -348,10 +349,10 @@ function slopeBelow(altitudeM: Float64Array, temperatureK: Float64Array, start: 
   let szz = 0;
   let szt = 0;
   for (let i = 0; i < start; i++) {
-    const z = altitudeM[i] as number;
+    const z = float64At(altitudeM, i);
     if (z > top || z < top - depthM) continue;
     szz += (z - meanZ) ** 2;
-    szt += (z - meanZ) * ((temperatureK[i] as number) - meanT);
+    szt += (z - meanZ) * (float64At(temperatureK, i) - meanT);
   }
   return szz > 0 ? szt / szz : null;
 }
@@ -397,8 +398,8 @@ export function detectAlternatingTemperature(
   let run = 0;
   let firstIndex = -1;
   for (let i = 1; i + 1 < n; i++) {
-    const before = (temperatureK[i] as number) - (temperatureK[i - 1] as number);
-    const after = (temperatureK[i + 1] as number) - (temperatureK[i] as number);
+    const before = float64At(temperatureK, i) - float64At(temperatureK, i - 1);
+    const after = float64At(temperatureK, i + 1) - float64At(temperatureK, i);
     if (Math.abs(before) >= options.minStepK && Math.abs(after) >= options.minStepK && Math.sign(before) !== Math.sign(after)) {
       zigzagCount++;
       run++;

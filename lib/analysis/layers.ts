@@ -16,6 +16,16 @@ export interface ProfilePoint {
   pressureHpa: number | null;
 }
 
+/**
+ * Bounds-checked read of a profile point (typed-arrays.ts `valueAt`, kept apart so that this hot
+ * read sees one element shape and stays fast).
+ */
+function pointAt(points: readonly ProfilePoint[], index: number): ProfilePoint {
+  const point = points[index];
+  if (point === undefined) throw new RangeError(`point ${index} is outside 0…${points.length - 1}`);
+  return point;
+}
+
 /** −0 from negating a zero slope would survive JSON round trips as 0 and break equality checks. */
 const withoutNegativeZero = (v: number): number => (v === 0 ? 0 : v);
 
@@ -46,7 +56,7 @@ export function buildLayerStat(
   let fittedBaseM = Infinity;
   let fittedTopM = -Infinity;
   for (let i = 0; i < n; i++) {
-    const p = points[i] as ProfilePoint;
+    const p = pointAt(points, i);
     if (p.altitudeM < fittedBaseM) fittedBaseM = p.altitudeM;
     if (p.altitudeM > fittedTopM) fittedTopM = p.altitudeM;
     xKm[i] = p.altitudeM / 1000;
@@ -109,7 +119,7 @@ export interface InversionLayer {
 export function detectInversions(points: readonly ProfilePoint[], mergeGapM: number, minStrengthK: number): InversionLayer[] {
   const runs: Array<{ base: number; top: number }> = [];
   for (let i = 0; i + 1 < points.length; i++) {
-    const warming = (points[i + 1] as ProfilePoint).temperatureK > (points[i] as ProfilePoint).temperatureK;
+    const warming = pointAt(points, i + 1).temperatureK > pointAt(points, i).temperatureK;
     if (!warming) continue;
     const last = runs[runs.length - 1];
     if (last && last.top === i) last.top = i + 1;
@@ -119,7 +129,7 @@ export function detectInversions(points: readonly ProfilePoint[], mergeGapM: num
   for (const run of runs) {
     const last = merged[merged.length - 1];
     if (last) {
-      const gapM = (points[run.base] as ProfilePoint).altitudeM - (points[last.top] as ProfilePoint).altitudeM;
+      const gapM = pointAt(points, run.base).altitudeM - pointAt(points, last.top).altitudeM;
       if (gapM <= mergeGapM) {
         last.top = run.top;
         continue;
@@ -129,8 +139,8 @@ export function detectInversions(points: readonly ProfilePoint[], mergeGapM: num
   }
   const layers: InversionLayer[] = [];
   for (const m of merged) {
-    const base = points[m.base] as ProfilePoint;
-    const top = points[m.top] as ProfilePoint;
+    const base = pointAt(points, m.base);
+    const top = pointAt(points, m.top);
     const strengthK = top.temperatureK - base.temperatureK;
     if (strengthK < minStrengthK) continue;
     layers.push({
@@ -233,7 +243,7 @@ export function computePhaseLayers(args: {
   const surface = args.surface;
   if (surface && first.altitudeM - surface.altitudeM >= args.binSizeM / 4) points.push(surface);
   for (const l of levels) points.push(l);
-  const groundM = (points[0] as ProfilePoint).altitudeM;
+  const groundM = pointAt(points, 0).altitudeM;
   const tropopauseM = tropopause.status === "found" ? tropopause.altitudeM : null;
   // Inversions are sought only in the troposphere: below a found tropopause, and below the candidate of
   // an undetermined one (the air above it may be the stratosphere, whose warming is no inversion layer).

@@ -10,3 +10,22 @@ export function valueAt<T>(list: ArrayLike<T>, index: number): T {
   if (value === undefined) throw new RangeError(`index ${index} is outside 0…${list.length - 1}`);
   return value;
 }
+
+/**
+ * `valueAt` for a Float64Array only. One helper serving every array kind sees many element kinds
+ * at its one indexed read and V8 then takes the slow generic path there; the analysis's hottest
+ * loops (sliding medians, spike and jump filters) read Float64Arrays through this one instead, so
+ * its read stays specialised.
+ */
+export function float64At(list: Float64Array, index: number): number {
+  const value = list[index];
+  if (value === undefined) throw new RangeError(`index ${index} is outside 0…${list.length - 1}`);
+  return value;
+}
+
+/** `float64At` for Int32Array index lists. */
+export function int32At(list: Int32Array, index: number): number {
+  const value = list[index];
+  if (value === undefined) throw new RangeError(`index ${index} is outside 0…${list.length - 1}`);
+  return value;
+}

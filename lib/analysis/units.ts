@@ -13,31 +13,11 @@ export function kelvinToCelsius(temperatureK: number): number {
 export function fahrenheitToKelvin(temperatureF: number): number {
   return ((temperatureF - 32) * 5) / 9 + ZERO_CELSIUS_K;
 }
-/** K → °F. */
-export function kelvinToFahrenheit(temperatureK: number): number {
-  return ((temperatureK - ZERO_CELSIUS_K) * 9) / 5 + 32;
-}
 /** International foot (0.3048 m exactly) → m. */
 export function feetToMetres(lengthFt: number): number {
   return lengthFt * 0.3048;
 }
-/** m → international feet. */
-export function metresToFeet(lengthM: number): number {
-  return lengthM / 0.3048;
-}
 /** Pa → hPa. */
 export function pascalToHectopascal(pressurePa: number): number {
   return pressurePa / 100;
-}
-/** hPa → Pa. */
-export function hectopascalToPascal(pressureHpa: number): number {
-  return pressureHpa * 100;
-}
-/** mbar → hPa (identical units). */
-export function millibarToHectopascal(pressureMbar: number): number {
-  return pressureMbar;
-}
-/** kPa → hPa. */
-export function kilopascalToHectopascal(pressureKpa: number): number {
-  return pressureKpa * 10;
 }

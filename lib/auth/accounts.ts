@@ -2,11 +2,11 @@ import { createHash, randomBytes, timingSafeEqual } from "node:crypto";
 import { hash as argon2Hash, verify as argon2Verify } from "@node-rs/argon2";
 import { z } from "zod";
 import { Prisma, type Db } from "../db/index.ts";
+import { getEnv } from "../env.ts";
 import { ACCOUNT_RULE, ADDRESS_RULE, clearFailures, pruneThrottles, refundCheck, reserveCheck } from "./login-throttle.ts";
 import type { Role, TokenScope, Viewer } from "./visibility.ts";
 
 export const SESSION_COOKIE = "lapsebank_session";
-const SESSION_DAYS = 14;
 const INVITATION_DAYS = 7;
 
 export const emailSchema = z.string().trim().toLowerCase().email("Enter a valid email address").max(200);
@@ -92,9 +92,10 @@ async function rememberAddress(db: Db, userId: string, address: string): Promise
  *   limit does not apply and the account's limit counts separately for that address: guessing
  *   from elsewhere, or on other accounts from the same address, does not make the owner wait there.
  * `address` comes from the trusted-proxy rule (app/_lib/viewer.ts getClientAddress).
- * Returns a new session secret for the cookie.
+ * Returns a new session secret for the cookie; the session lasts `sessionDays` (default
+ * LAPSEBANK_SESSION_DAYS, 14 when unset).
  */
-export async function signIn(db: Db, input: z.input<typeof signInSchema>, address: string): Promise<{ sessionSecret: string; userId: string; expiresAt: Date }> {
+export async function signIn(db: Db, input: z.input<typeof signInSchema>, address: string, options: { sessionDays?: number } = {}): Promise<{ sessionSecret: string; userId: string; expiresAt: Date }> {
   const data = signInSchema.parse(input);
   const known = await isKnownAddress(db, data.email, address);
   // From an address the person used before, the account's tries have a bucket of their own, so
@@ -120,7 +121,8 @@ export async function signIn(db: Db, input: z.input<typeof signInSchema>, addres
   await rememberAddress(db, user.id, address);
   await pruneThrottles(db);
   const sessionSecret = secret();
-  const expiresAt = new Date(Date.now() + SESSION_DAYS * 86_400_000);
+  const sessionDays = options.sessionDays ?? getEnv().LAPSEBANK_SESSION_DAYS;
+  const expiresAt = new Date(Date.now() + sessionDays * 86_400_000);
   await db.session.create({ data: { id: sha256(sessionSecret), userId: user.id, expiresAt } });
   return { sessionSecret, userId: user.id, expiresAt };
 }

@@ -208,7 +208,7 @@ async function runIngest(args: string[]): Promise<number> {
 /** `ingest --server URL --token T`: the same upload through a remote server's JSON API. */
 async function runRemoteIngest(files: string[], values: Record<string, string | boolean | undefined>): Promise<number> {
   const server = String(values.server).replace(/\/+$/, "");
-  const token = values.token ?? process.env.LAPSEBANK_TOKEN;
+  const token = values.token ?? getEnv().LAPSEBANK_TOKEN;
   if (!token) {
     console.error("ingest --server needs --token (or LAPSEBANK_TOKEN): make one on the server's Account page");
     return 2;
@@ -258,7 +258,7 @@ async function runAdmin(args: string[]): Promise<number> {
     return 2;
   }
   const { values } = parseArgs({ args: rest, options: { email: { type: "string" }, name: { type: "string" } } });
-  let password = process.env.LAPSEBANK_ADMIN_PASSWORD;
+  let password = getEnv().LAPSEBANK_ADMIN_PASSWORD;
   if (!password) {
     process.stderr.write("Password (at least 10 characters): ");
     password = await readLine();

@@ -27,7 +27,7 @@ async function start(): Promise<void> {
     process.exit(1);
   }
   const demo = await autoloadDemo(handle, {
-    skip: process.env.LAPSEBANK_SKIP_DEMO === "1",
+    skip: env.LAPSEBANK_SKIP_DEMO,
     onProgress: (done, total) => {
       if (done === 1) console.log("The SQLite database is empty: loading the demo archive (invented schools and flights, labelled as such)…");
       process.stdout.write(`\r  ${done}/${total} flights`);
@@ -39,10 +39,10 @@ async function start(): Promise<void> {
   } else if (demo.reason === "not-sqlite" && (await db.flight.count()) === 0) {
     console.log("PostgreSQL database: no demo loaded (run `npm run lapsebank -- demo` to load the invented demo archive)");
   }
-  const listen = chooseListenHost({ lapsebankHost: env.LAPSEBANK_HOST, host: process.env.HOST, accountsExist: (await db.user.count()) > 0 });
+  const listen = chooseListenHost({ lapsebankHost: env.LAPSEBANK_HOST, host: env.HOST, accountsExist: (await db.user.count()) > 0 });
   await db.$disconnect();
 
-  if (buildIsStale() || process.env.LAPSEBANK_REBUILD === "1") {
+  if (buildIsStale() || env.LAPSEBANK_REBUILD) {
     console.log("Building the web app (first start, or the sources changed since the last build)…");
     const build = spawnSync("node_modules/.bin/next", ["build"], { stdio: "inherit" });
     if (build.status !== 0) process.exit(build.status ?? 1);

@@ -1,6 +1,7 @@
 import { Readable } from "node:stream";
 import { parse as createCsvParser } from "csv-parse";
 import type { RawSample } from "../analysis/types.ts";
+import { feetToMetres, pascalToHectopascal } from "../analysis/units.ts";
 import { fileIssue, IngestFailure, type IngestIssue } from "./errors.ts";
 import { WallClockReader } from "./clock-zone.ts";
 import { DELIMITER_CHARACTERS, describeColumn, type LayoutColumnKey, type LoggerLayoutSpec } from "./layout.ts";
@@ -354,10 +355,10 @@ function parseTimeField(field: string, format: "clock-time" | "iso-datetime"): T
 
 function toMetres(value: number | null, unit: "m" | "ft" | undefined): number | null {
   if (value === null) return null;
-  return unit === "ft" ? value * 0.3048 : value; // international foot, exact
+  return unit === "ft" ? feetToMetres(value) : value;
 }
 
 function toHpa(value: number | null, unit: "hPa" | "Pa" | "mbar" | undefined): number | null {
   if (value === null) return null;
-  return unit === "Pa" ? value / 100 : value; // 1 mbar = 1 hPa
+  return unit === "Pa" ? pascalToHectopascal(value) : value; // 1 mbar = 1 hPa
 }

@@ -43,9 +43,6 @@ export const CLAIM_SIDES = ["two-sided", "greater", "less"] as const;
 
 export const SCATTER_AXES = ["day-of-year", "launch-hour"] as const;
 
-/** Metrics read from the stored flight summary, which describes the ascent. */
-export const SUMMARY_METRICS: readonly ClimatologyMetric[] = CLIMATOLOGY_METRICS.filter((m) => m !== "band-lapse-rate");
-
 /** A season filter or claim group: a hemisphere-aware season name, or a set of local months. */
 export type MonthSelection =
   | { kind: "season-name"; name: SeasonName; label: string }

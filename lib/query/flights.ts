@@ -3,6 +3,7 @@ import { getDb, type Db, type Prisma } from "../db/index.ts";
 import { runUsedSite } from "../db/site-snapshot.ts";
 import { flightVisibilityWhere, type Viewer } from "../auth/visibility.ts";
 import { archiveFlightWhere, type ArchiveFilter } from "./archive-filter.ts";
+import { readStoredJson, removedCountsSchema, storedWarningsSchema } from "./stored-json.ts";
 
 export interface FlightListRow {
   id: string;
@@ -116,6 +117,8 @@ export async function getFlight(viewer: Viewer, flightId: string, db: Db = getDb
   });
   if (!flight) return null;
   const currentRun = flight.runs.find((r) => r.isCurrent) ?? flight.runs[0] ?? null;
+  const warnings = currentRun && readStoredJson(storedWarningsSchema, currentRun.warnings ?? [], "QC notes");
+  const removedCounts = currentRun && readStoredJson(removedCountsSchema, currentRun.removedCounts, "removed-row counts");
   return {
     id: flight.id,
     title: flight.title,
@@ -140,9 +143,9 @@ export async function getFlight(viewer: Viewer, flightId: string, db: Db = getDb
       calibrationSpec: currentRun.calibrationSpec,
       site: { latitudeDeg: currentRun.siteLatitudeDeg, longitudeDeg: currentRun.siteLongitudeDeg, elevationM: currentRun.siteElevationM, timeZone: currentRun.siteTimeZone },
       siteCorrectedSince: !runUsedSite(currentRun, flight.site),
-      warnings: (currentRun.warnings ?? []) as Array<{ code: string; message: string }>,
+      warnings: [...(warnings?.value ?? []), ...[warnings?.problem, removedCounts?.problem].filter((p) => p != null)],
       qcFlags: currentRun.qcFlags ? currentRun.qcFlags.split(",") : [],
-      removedCounts: currentRun.removedCounts as Record<string, number>,
+      removedCounts: removedCounts?.value ?? null,
       rowCount: currentRun.rowCount,
       skippedRowCount: currentRun.skippedRowCount,
       summary: currentRun.summary && { ...currentRun.summary, launchAtUtc: currentRun.summary.launchAtUtc.toISOString() },

@@ -3,6 +3,7 @@ import { isDeepStrictEqual } from "node:util";
 import { getDb, type Db } from "../db/index.ts";
 import { can } from "../auth/permissions.ts";
 import { flightVisibilityWhere, type Viewer } from "../auth/visibility.ts";
+import { parameterRecordSchema, readStoredJson } from "./stored-json.ts";
 
 const iso = (d: Date) => d.toISOString();
 const isoOrNull = (d: Date | null) => (d ? d.toISOString() : null);
@@ -166,6 +167,8 @@ export interface RunDifference {
   siteChanged: boolean;
   /** Names of the analysis parameters whose values differ. */
   changedParameters: string[];
+  /** Stored snapshots that could not be read, in words (their comparison is left out). */
+  unreadable: string[];
 }
 
 interface RunForDifference {
@@ -183,8 +186,10 @@ const delta = (after: number | null, before: number | null) => (after === null |
 
 /** Compares two runs of the same flight (`before` the older one). */
 export function compareRuns(before: RunForDifference, after: RunForDifference): RunDifference {
-  const paramsBefore = (before.parameters ?? {}) as Record<string, unknown>;
-  const paramsAfter = (after.parameters ?? {}) as Record<string, unknown>;
+  const readBefore = readStoredJson(parameterRecordSchema, before.parameters ?? {}, "parameters of the earlier run");
+  const readAfter = readStoredJson(parameterRecordSchema, after.parameters ?? {}, "parameters");
+  const paramsBefore = readBefore.value ?? {};
+  const paramsAfter = readAfter.value ?? {};
   const names = [...new Set([...Object.keys(paramsBefore), ...Object.keys(paramsAfter)])].sort();
   return {
     tropopauseAltitudeDeltaM: delta(after.tropopauseAltitudeM, before.tropopauseAltitudeM),
@@ -195,7 +200,8 @@ export function compareRuns(before: RunForDifference, after: RunForDifference): 
     calibrationChanged: !isDeepStrictEqual(before.calibrationSpec, after.calibrationSpec),
     layoutChanged: !isDeepStrictEqual(before.layoutSpec, after.layoutSpec),
     siteChanged: !isDeepStrictEqual(before.site, after.site),
-    changedParameters: names.filter((n) => !isDeepStrictEqual(paramsBefore[n], paramsAfter[n])),
+    changedParameters: readBefore.value && readAfter.value ? names.filter((n) => !isDeepStrictEqual(paramsBefore[n], paramsAfter[n])) : [],
+    unreadable: [readBefore.problem, readAfter.problem].flatMap((problem) => (problem ? [problem.message] : [])),
   };
 }
 

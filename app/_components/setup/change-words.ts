@@ -10,6 +10,8 @@ export interface ChangeLike {
   layoutChanged?: boolean;
   siteChanged?: boolean;
   tropopauseFoundChanged?: boolean;
+  /** Stored snapshots that could not be read, in words. */
+  unreadable?: string[];
 }
 
 const signed = (value: number, digits: number) => {
@@ -32,5 +34,6 @@ export function describeChange(change: ChangeLike): string[] {
   const version = change.analysisVersionChanged;
   if (version && typeof version === "object") words.push(`analysis version ${version.from} → ${version.to}`);
   else if (version === true) words.push("analysis version changed");
+  words.push(...(change.unreadable ?? []));
   return words;
 }
