@@ -1,4 +1,4 @@
-import { Prisma, type Db, type DbTransaction } from "./index.ts";
+import { engineOf, Prisma, type Db, type DbTransaction } from "./index.ts";
 
 export interface ProfileLevelRow {
   phase: string;
@@ -35,13 +35,4 @@ export async function insertProfileLevels(db: Db | DbTransaction, runId: string,
     );
     await db.$executeRaw`INSERT INTO "ProfileLevel" ("runId", "phase", "altitudeM", "baseM", "topM", "sampleCount", "temperatureK", "temperatureSdK", "pressureHpa", "relativeHumidityPct") VALUES ${Prisma.join(rows)}`;
   }
-}
-
-/**
- * Which engine a client (or transaction client) talks to. Prisma keeps the provider on the client
- * as `_activeProvider`; both generated clients set it.
- */
-export function engineOf(db: Db | DbTransaction): "sqlite" | "postgres" {
-  const provider = (db as unknown as { _activeProvider?: string })._activeProvider;
-  return provider === "postgresql" || provider === "postgres" ? "postgres" : "sqlite";
 }

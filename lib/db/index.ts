@@ -21,6 +21,24 @@ export interface DbHandle {
   url: string;
 }
 
+const ENGINE = Symbol.for("lapsebank.db.engine");
+
+/** Marks a client with its engine; transaction clients read through to it (see engineOf). */
+function tagged(db: Db, engine: DbHandle["engine"]): Db {
+  Object.defineProperty(db, ENGINE, { value: engine, enumerable: false });
+  return db;
+}
+
+/**
+ * Which engine a client made by createDb (or a transaction client of one) talks to, for code that is
+ * handed a client without its DbHandle. Reads the mark createDb puts on the client, no Prisma internals.
+ */
+export function engineOf(db: Db | DbTransaction): DbHandle["engine"] {
+  const engine = (db as unknown as Record<symbol, unknown>)[ENGINE];
+  if (engine !== "sqlite" && engine !== "postgres") throw new Error("engineOf: this client was not made by createDb");
+  return engine;
+}
+
 /** Builds a client for a DATABASE_URL: file: → better-sqlite3 adapter, postgres:// → pg adapter. */
 export function createDb(url: string): DbHandle {
   if (isPostgresUrl(url)) {
@@ -29,11 +47,11 @@ export function createDb(url: string): DbHandle {
       { connectionString: url, max: 10, ...(schema ? { options: `-c search_path="${schema}"` } : {}) },
       schema ? { schema } : undefined,
     );
-    const db = new PostgresClient({ adapter }) as unknown as Db;
+    const db = tagged(new PostgresClient({ adapter }) as unknown as Db, "postgres");
     return { db, engine: "postgres", url };
   }
   const adapter = new PrismaBetterSqlite3({ url });
-  return { db: new SqliteClient({ adapter }), engine: "sqlite", url };
+  return { db: tagged(new SqliteClient({ adapter }), "sqlite"), engine: "sqlite", url };
 }
 
 const globalForDb = globalThis as unknown as { lapsebankDb?: DbHandle };

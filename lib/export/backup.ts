@@ -15,6 +15,7 @@ import path from "node:path";
 import { z } from "zod";
 import packageJson from "../../package.json" with { type: "json" };
 import { Prisma, type Db, type DbHandle, type DbTransaction } from "../db/index.ts";
+import { dialectFor, type Dialect } from "../db/dialect.ts";
 import { isStorableInstant, launchTimeProblem } from "../ingest/time-bounds.ts";
 import { ZipQueue } from "./zip-queue.ts";
 import { ZipEntryError, ZipReader } from "./zip-reader.ts";
@@ -354,10 +355,10 @@ async function refuseIfOccupied(db: Db | DbTransaction): Promise<void> {
   }
 }
 
-async function resetSequences(db: DbTransaction): Promise<void> {
-  // PostgreSQL keeps serial counters apart from the rows; SQLite's AUTOINCREMENT follows inserted ids.
+/** Moves the serial id counters past the restored rows (PostgreSQL keeps them apart from the rows). */
+async function resetSequences(db: DbTransaction, dialect: Dialect): Promise<void> {
   for (const table of ["ProfileLevel", "ProgramSettings"]) {
-    await db.$executeRawUnsafe(`SELECT setval(pg_get_serial_sequence('"${table}"', 'id'), COALESCE((SELECT MAX("id") FROM "${table}"), 0) + 1, false)`);
+    for (const statement of dialect.resetIdSequence(table)) await db.$executeRaw(statement);
   }
 }
 
@@ -563,7 +564,7 @@ export async function restoreArchive(handle: Pick<DbHandle, "db" | "engine">, fi
           await refuseIfOccupied(tx);
           const report = await writeBackup(tx, backup, now, options.onProgress);
           await fillRunSiteSnapshots(tx);
-          if (handle.engine === "postgres") await resetSequences(tx);
+          await resetSequences(tx, dialectFor(handle.engine));
           // Every marker: an older interrupted restore is settled by this complete one.
           await tx.restoreMarker.deleteMany({});
           return { ...report, formatVersion: backup.manifest.formatVersion };

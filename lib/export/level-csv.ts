@@ -15,7 +15,8 @@ import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
 import pg from "pg";
-import type { DbHandle } from "../db/index.ts";
+import { Prisma, type DbHandle } from "../db/index.ts";
+import { postgresDialect } from "../db/dialect.ts";
 import { csvCell } from "./csv.ts";
 import { pgPoolConfig, sqlitePath } from "./level-reader.ts";
 
@@ -134,7 +135,7 @@ async function* sqliteLevelPages(url: string, pages: AsyncIterable<RunOfFlight[]
 }
 
 /** Each numeric cell as float8/int text, empty when missing: the same cells csv.ts writes. */
-const PG_LEVEL_NUMBERS = `concat("altitudeM", ',', "baseM", ',', "topM", ',', "sampleCount", ',', "temperatureK", ',', "temperatureSdK", ',', "pressureHpa", ',', "relativeHumidityPct")`;
+const PG_LEVEL_NUMBERS = Prisma.sql`concat("altitudeM", ',', "baseM", ',', "topM", ',', "sampleCount", ',', "temperatureK", ',', "temperatureSdK", ',', "pressureHpa", ',', "relativeHumidityPct")`;
 
 /** Numbers PostgreSQL wrote with an exponent. */
 const EXPONENT_NUMBER = /-?[0-9.]+e[-+]\d+/g;
@@ -171,18 +172,17 @@ function pgPageCsv(runs: readonly RunOfFlight[], result: readonly PgLevelRow[]):
 async function* postgresLevelPages(url: string, pages: AsyncIterable<RunOfFlight[]>, connections: number): AsyncGenerator<CsvPage> {
   const pool = new pg.Pool({ ...pgPoolConfig(url, ["-c extra_float_digits=1"]), max: connections });
   const encoder = new TextEncoder();
-  const query = (runs: RunOfFlight[]) =>
-    pool.query<PgLevelRow>({
-      // One index range scan per run (LATERAL, equality on the index's first column): the plan stays
-      // right even before the planner has statistics, e.g. just after a restore or a bulk load.
-      text: `SELECT r.id, x."phase", x.n, x.lines FROM unnest($1::text[]) AS r(id)
+  const lines = postgresDialect.stringAgg(PG_LEVEL_NUMBERS, "\n", Prisma.sql`l."altitudeM"`);
+  const query = (runs: RunOfFlight[]) => {
+    // One index range scan per run (LATERAL, equality on the index's first column): the plan stays
+    // right even before the planner has statistics, e.g. just after a restore or a bulk load.
+    const statement = Prisma.sql`SELECT r.id, x."phase", x.n, x.lines FROM unnest(CAST(${runs.map((r) => r.runId)} AS text[])) AS r(id)
              CROSS JOIN LATERAL (
-               SELECT l."phase", count(*)::text AS n, string_agg(${PG_LEVEL_NUMBERS}, E'\\n' ORDER BY l."altitudeM") AS lines
+               SELECT l."phase", count(*)::text AS n, ${lines} AS lines
                FROM "ProfileLevel" l WHERE l."runId" = r.id GROUP BY l."phase"
-             ) x`,
-      values: [runs.map((r) => r.runId)],
-      rowMode: "array",
-    });
+             ) x`;
+    return pool.query<PgLevelRow>({ text: statement.text, values: statement.values, rowMode: "array" });
+  };
   const inFlight: Array<{ runs: RunOfFlight[]; result: ReturnType<typeof query> }> = [];
   // A hundred runs per query: fewer round trips, a couple of megabytes of text per answer.
   const source = inPiecesOf(100, pages)[Symbol.asyncIterator]();

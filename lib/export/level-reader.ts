@@ -6,7 +6,8 @@
  */
 import Database from "better-sqlite3";
 import pg from "pg";
-import type { DbHandle } from "../db/index.ts";
+import { Prisma, type DbHandle } from "../db/index.ts";
+import { dialectFor } from "../db/dialect.ts";
 
 /** runId, phase, altitudeM, baseM, topM, sampleCount, temperatureK, temperatureSdK, pressureHpa, relativeHumidityPct */
 export type LevelTuple = [string, string, number, number, number, number, number, number | null, number | null, number | null];
@@ -17,7 +18,7 @@ export interface LevelReader {
   close(): Promise<void>;
 }
 
-const COLUMNS = `"runId", "phase", "altitudeM", "baseM", "topM", "sampleCount", "temperatureK", "temperatureSdK", "pressureHpa", "relativeHumidityPct"`;
+const COLUMNS = Prisma.sql`"runId", "phase", "altitudeM", "baseM", "topM", "sampleCount", "temperatureK", "temperatureSdK", "pressureHpa", "relativeHumidityPct"`;
 
 /** File path of a SQLite URL (file:./data/x.db, file:/abs/x.db?mode=…). */
 export function sqlitePath(url: string): string {
@@ -36,14 +37,19 @@ export function pgPoolConfig(url: string, options: string[] = []): pg.PoolConfig
   return { connectionString: parsed.toString(), ...(settings.length ? { options: settings.join(" ") } : {}) };
 }
 
+/** The levels of these runs, as the dialect's one-parameter id list. */
+function levelsOf(handle: Pick<DbHandle, "engine">, runIds: readonly string[]): Prisma.Sql {
+  const runId = Prisma.sql`"runId"`;
+  return Prisma.sql`SELECT ${COLUMNS} FROM "ProfileLevel" WHERE ${dialectFor(handle.engine).inTextList(runId, runIds)} ORDER BY "runId", "phase", "altitudeM"`;
+}
+
 export function openLevelReader(handle: Pick<DbHandle, "engine" | "url">): LevelReader {
   if (handle.engine === "sqlite") {
     const database = new Database(sqlitePath(handle.url), { readonly: true, fileMustExist: true });
-    const statement = database
-      .prepare(`SELECT ${COLUMNS} FROM "ProfileLevel" WHERE "runId" IN (SELECT value FROM json_each(?)) ORDER BY "runId", "phase", "altitudeM"`)
-      .raw(true);
+    // The statement's text does not depend on the ids (one bound list), so it is prepared once.
+    const statement = database.prepare(levelsOf(handle, []).sql).raw(true);
     return {
-      read: async (runIds) => (runIds.length ? (statement.all(JSON.stringify(runIds)) as LevelTuple[]) : []),
+      read: async (runIds) => (runIds.length ? (statement.all(...levelsOf(handle, runIds).values) as LevelTuple[]) : []),
       close: async () => void database.close(),
     };
   }
@@ -51,11 +57,8 @@ export function openLevelReader(handle: Pick<DbHandle, "engine" | "url">): Level
   return {
     read: async (runIds) => {
       if (runIds.length === 0) return [];
-      const result = await pool.query<LevelTuple>({
-        text: `SELECT ${COLUMNS} FROM "ProfileLevel" WHERE "runId" = ANY($1::text[]) ORDER BY "runId", "phase", "altitudeM"`,
-        values: [runIds],
-        rowMode: "array",
-      });
+      const statement = levelsOf(handle, runIds);
+      const result = await pool.query<LevelTuple>({ text: statement.text, values: statement.values, rowMode: "array" });
       return result.rows.map((r) => [r[0], r[1], Number(r[2]), Number(r[3]), Number(r[4]), Number(r[5]), Number(r[6]), r[7] === null ? null : Number(r[7]), r[8] === null ? null : Number(r[8]), r[9] === null ? null : Number(r[9])]);
     },
     close: () => pool.end(),

@@ -61,7 +61,8 @@ function listedFlights(result: ClimatologyResult): number {
 export async function getClimatologyCached(viewer: Viewer, query: ClimatologyQuery, handle: DbLike = getDbHandle(), options: { profiles?: boolean } = {}): Promise<ClimatologyResult> {
   const revision = await archiveRevision(handle.db);
   // Two viewers with the same visibility condition see exactly the same flights.
-  const key = JSON.stringify([visibilitySql(viewer), query, options.profiles !== false]);
+  const visibility = visibilitySql(viewer);
+  const key = JSON.stringify([visibility.sql, visibility.values, query, options.profiles !== false]);
   let cache = caches.get(handle.db);
   if (!cache) {
     cache = { entries: new Map(), flights: 0 };

@@ -2,7 +2,8 @@
  * Climatology query engine without the server-only marker, so the benchmark script (plain Node)
  * can run it; app code imports lib/query/climatology.ts instead.
  */
-import { getDbHandle, type DbHandle } from "../db/index.ts";
+import { getDbHandle, Prisma, type DbHandle } from "../db/index.ts";
+import { and, dialectFor, list, type Dialect } from "../db/dialect.ts";
 import type { Viewer } from "../auth/visibility.ts";
 import { visibilitySql } from "../auth/visibility-sql.ts";
 import { describe } from "../stats/index.ts";
@@ -21,7 +22,6 @@ import {
   type HeightReference,
 } from "../analysis/band-coverage.ts";
 import { fitOrdinaryLeastSquares } from "../analysis/regression.ts";
-import { andSql, forEngine, listSql, raw, sql, type SqlEngine, type SqlFragment } from "./climatology-sql.ts";
 import { monthAbbreviation, type ClimatologyMetric, type ClimatologyQuery, type MonthSelection } from "./climatology-params.ts";
 
 export interface MetricInfo {
@@ -186,34 +186,30 @@ const METRIC_VALUE_SQL: Readonly<Record<Exclude<ClimatologyMetric, "band-lapse-r
   "max-altitude": `s."maxAltitudeM" / 1000.0`,
 };
 
+const sql = Prisma.sql;
+type SqlFragment = Prisma.Sql;
+
 function selectionSql(selection: MonthSelection): SqlFragment {
-  return selection.kind === "season-name" ? sql`s."seasonName" = ${selection.name}` : sql`s."month" IN ${listSql(selection.months)}`;
+  return selection.kind === "season-name" ? sql`s."seasonName" = ${selection.name}` : sql`s."month" IN ${list(selection.months)}`;
 }
 
-/** Local launch date as YYYY-MM-DD on either engine (SQLite keeps DateTime as ISO text). */
-function dateConditions(engine: SqlEngine, from: string | undefined, to: string | undefined): SqlFragment[] {
+/** The launch's UTC day from `from` to `to` (YYYY-MM-DD), either end optional. */
+function dateConditions(dialect: Dialect, from: string | undefined, to: string | undefined): SqlFragment[] {
   const out: SqlFragment[] = [];
-  if (engine === "sqlite") {
-    if (from) out.push(sql`substr(s."launchAtUtc", 1, 10) >= ${from}`);
-    if (to) out.push(sql`substr(s."launchAtUtc", 1, 10) <= ${to}`);
-  } else {
-    if (from) out.push(sql`s."launchAtUtc" >= CAST(${from} AS timestamp)`);
-    if (to) out.push(sql`s."launchAtUtc" < CAST(${to} AS timestamp) + INTERVAL '1 day'`);
-  }
+  if (from) out.push(dialect.onOrAfterDay(sql`s."launchAtUtc"`, from));
+  if (to) out.push(dialect.onOrBeforeDay(sql`s."launchAtUtc"`, to));
   return out;
 }
 
 /** The filter conditions; `invented` is the rule already resolved ("auto" is decided in getClimatology). */
-function filterConditions(viewer: Viewer, query: ClimatologyQuery, engine: SqlEngine): SqlFragment[] {
-  const visibility = visibilitySql(viewer, "f");
-  // On SQLite, "+" keeps the planner off the low-selectivity isCurrent indexes: one sequential scan of the
-  // summaries beats thousands of index-then-row lookups when most rows are current.
-  const current = engine === "sqlite" ? raw(`+s."isCurrent" = TRUE`) : raw(`s."isCurrent" = TRUE`);
-  const c: SqlFragment[] = [current, { text: visibility.text, values: visibility.values }];
-  if (query.school.length) c.push(sql`s."schoolId" IN ${listSql(query.school)}`);
-  if (query.site.length) c.push(sql`s."siteId" IN ${listSql(query.site)}`);
-  c.push(...dateConditions(engine, query.from, query.to));
-  if (query.years.length) c.push(sql`s."year" IN ${listSql(query.years)}`);
+function filterConditions(viewer: Viewer, query: ClimatologyQuery, dialect: Dialect): SqlFragment[] {
+  // Most summaries are current: one sequential scan beats thousands of index-then-row lookups on isCurrent.
+  const current = sql`${dialect.unindexed(sql`s."isCurrent"`)} = TRUE`;
+  const c: SqlFragment[] = [current, visibilitySql(viewer, "f")];
+  if (query.school.length) c.push(sql`s."schoolId" IN ${list(query.school)}`);
+  if (query.site.length) c.push(sql`s."siteId" IN ${list(query.site)}`);
+  c.push(...dateConditions(dialect, query.from, query.to));
+  if (query.years.length) c.push(sql`s."year" IN ${list(query.years)}`);
   if (query.season) c.push(selectionSql(query.season));
   if (query.months) c.push(selectionSql(query.months));
   if (query.hourFrom !== undefined) c.push(sql`s."localHour" >= ${query.hourFrom}`);
@@ -222,8 +218,8 @@ function filterConditions(viewer: Viewer, query: ClimatologyQuery, engine: SqlEn
   if (query.sunriseTo !== undefined) c.push(sql`s."hoursAfterSunrise" <= ${query.sunriseTo}`);
   if (query.elevationFrom !== undefined) c.push(sql`s."solarElevationDeg" >= ${query.elevationFrom}`);
   if (query.elevationTo !== undefined) c.push(sql`s."solarElevationDeg" <= ${query.elevationTo}`);
-  if (query.qc === "exclude") c.push(raw(`s."qcFlagged" = FALSE`));
-  if (query.invented === "exclude") c.push(raw(`f."synthetic" = FALSE`));
+  if (query.qc === "exclude") c.push(sql`s."qcFlagged" = FALSE`);
+  if (query.invented === "exclude") c.push(sql`f."synthetic" = FALSE`);
   if (query.minCoverageKm !== undefined) c.push(sql`(s."maxAltitudeM" - s."minAltitudeM") >= ${query.minCoverageKm * 1000}`);
   if (query.claim === "two-group" && query.groupA && query.groupB) {
     c.push(sql`(${selectionSql(query.groupA)}) OR (${selectionSql(query.groupB)})`);
@@ -231,37 +227,35 @@ function filterConditions(viewer: Viewer, query: ClimatologyQuery, engine: SqlEn
   return c;
 }
 
-/** floor(column / width) on either engine; `column` may be negative down to −48 h. */
-function hourBinSql(engine: SqlEngine, column: string, widthH: number): SqlFragment {
-  if (engine === "postgres") return raw(`FLOOR(${column} / ${widthH}.0)`);
-  // SQLite's CAST truncates toward zero; shifting by 48 h (a multiple of every offered width) makes it a floor.
-  return raw(`(CAST((${column} + 48.0) / ${widthH}.0 AS INTEGER) - ${48 / widthH})`);
+/** floor(column / width); `column` may be negative down to −48 h (a multiple of every offered width). */
+function hourBinSql(dialect: Dialect, column: SqlFragment, widthH: number): SqlFragment {
+  return dialect.floorDivide(column, widthH, 48);
 }
 
 /** The SQL expression whose value names a flight's group; the same expression groups the mean profiles. */
-function groupKeySql(query: ClimatologyQuery, engine: SqlEngine): SqlFragment {
+function groupKeySql(query: ClimatologyQuery, dialect: Dialect): SqlFragment {
   if (query.claim === "two-group" && query.groupA && query.groupB) {
     return sql`CASE WHEN ${selectionSql(query.groupA)} THEN ${"A"} WHEN ${selectionSql(query.groupB)} THEN ${"B"} END`;
   }
   switch (query.groupBy) {
     case "none":
-      return raw(`'all'`);
+      return sql`'all'`;
     case "season":
-      return raw(`s."seasonName"`);
+      return sql`s."seasonName"`;
     case "season-code":
-      return raw(`s."season"`);
+      return sql`s."season"`;
     case "month":
-      return raw(`s."month"`);
+      return sql`s."month"`;
     case "site":
-      return raw(`s."siteId"`);
+      return sql`s."siteId"`;
     case "school":
-      return raw(`s."schoolId"`);
+      return sql`s."schoolId"`;
     case "year":
-      return raw(`s."year"`);
+      return sql`s."year"`;
     case "launch-hour":
-      return hourBinSql(engine, `s."localHour"`, query.binHours);
+      return hourBinSql(dialect, sql`s."localHour"`, query.binHours);
     case "hours-after-sunrise":
-      return hourBinSql(engine, `s."hoursAfterSunrise"`, query.binHours);
+      return hourBinSql(dialect, sql`s."hoursAfterSunrise"`, query.binHours);
   }
 }
 
@@ -270,19 +264,15 @@ function bandOf(query: ClimatologyQuery): BandSpec | null {
   return { baseM: query.bandBaseKm * 1000, topM: query.bandTopKm * 1000, reference: query.bandReference };
 }
 
-/** A number as a typed SQL value (PostgreSQL cannot type a bare parameter in a select list). */
-function realSql(engine: SqlEngine, value: number): SqlFragment {
-  return engine === "postgres" ? sql`CAST(${value} AS DOUBLE PRECISION)` : sql`CAST(${value} AS REAL)`;
-}
 
 /**
  * Each candidate's band limits above mean sea level, the SQL twin of bandRangeMsl
  * (lib/analysis/band-coverage.ts): AGL limits are moved up by the run's ground (FlightSummary.groundElevationM,
  * the site's elevation the analysis used), MSL limits are kept. NULL for an AGL band without a ground.
  */
-function bandRangeSql(band: BandSpec, engine: SqlEngine): { baseM: SqlFragment; topM: SqlFragment } {
-  if (band.reference === "msl") return { baseM: realSql(engine, band.baseM), topM: realSql(engine, band.topM) };
-  return { baseM: sql`(s."groundElevationM" + ${realSql(engine, band.baseM)})`, topM: sql`(s."groundElevationM" + ${realSql(engine, band.topM)})` };
+function bandRangeSql(band: BandSpec, dialect: Dialect): { baseM: SqlFragment; topM: SqlFragment } {
+  if (band.reference === "msl") return { baseM: dialect.real(band.baseM), topM: dialect.real(band.topM) };
+  return { baseM: sql`(s."groundElevationM" + ${dialect.real(band.baseM)})`, topM: sql`(s."groundElevationM" + ${dialect.real(band.topM)})` };
 }
 
 /**
@@ -292,30 +282,31 @@ function bandRangeSql(band: BandSpec, engine: SqlEngine): { baseM: SqlFragment; 
  * The band's MSL limits come per run from bandRangeSql. Runs whose in-band bins are not contiguous (or whose
  * altitudes hardly spread) are decided from their levels afterwards (loadBandLevels).
  */
-function candidateSql(viewer: Viewer, query: ClimatologyQuery, engine: SqlEngine): SqlFragment {
-  const where = andSql(filterConditions(viewer, query, engine));
-  const launchIso = engine === "sqlite" ? `substr(s."launchAtUtc", 1, 19) || 'Z'` : `to_char(s."launchAtUtc", 'YYYY-MM-DD"T"HH24:MI:SS"Z"')`;
+function candidateSql(viewer: Viewer, query: ClimatologyQuery, dialect: Dialect): SqlFragment {
+  const where = and(filterConditions(viewer, query, dialect));
+  const launchIso = dialect.isoUtcSeconds(sql`s."launchAtUtc"`);
   const band = bandOf(query);
-  const valueSql = band ? raw("NULL") : raw(METRIC_VALUE_SQL[query.metric as Exclude<ClimatologyMetric, "band-lapse-rate">]);
+  // The metric expressions are fixed text of this module (no user input reaches them).
+  const valueSql = band ? sql`NULL` : Prisma.raw(METRIC_VALUE_SQL[query.metric as Exclude<ClimatologyMetric, "band-lapse-rate">]);
   if (!band && query.flights === "none") {
     // Summary only: the group key, the value and the site (for the claim's clustering caveat).
-    return sql`SELECT s."siteId" AS "siteId", f."synthetic" AS "synthetic", ${groupKeySql(query, engine)} AS "groupKey", ${valueSql} AS "value"
+    return sql`SELECT s."siteId" AS "siteId", f."synthetic" AS "synthetic", ${groupKeySql(query, dialect)} AS "groupKey", ${valueSql} AS "value"
       FROM "FlightSummary" s JOIN "Flight" f ON f."id" = s."flightId"
       WHERE ${where}`;
   }
-  const range = band ? bandRangeSql(band, engine) : null;
+  const range = band ? bandRangeSql(band, dialect) : null;
   const bandColumns = range
     ? sql`, ${range.baseM} AS "bandBaseMslM", ${range.topM} AS "bandTopMslM", s."groundElevationM" AS "groundElevationM"`
-    : raw("");
+    : Prisma.empty;
   const candidates = sql`SELECT s."flightId" AS "flightId", s."runId" AS "runId", f."title" AS "title", s."siteId" AS "siteId", f."synthetic" AS "synthetic",
-      s."schoolId" AS "schoolId", ${raw(launchIso)} AS "launchAtUtc", s."dayOfYear" AS "dayOfYear", s."localHour" AS "localHour",
-      s."hoursAfterSunrise" AS "hoursAfterSunrise", ${groupKeySql(query, engine)} AS "groupKey", ${valueSql} AS "value"${bandColumns}
+      s."schoolId" AS "schoolId", ${launchIso} AS "launchAtUtc", s."dayOfYear" AS "dayOfYear", s."localHour" AS "localHour",
+      s."hoursAfterSunrise" AS "hoursAfterSunrise", ${groupKeySql(query, dialect)} AS "groupKey", ${valueSql} AS "value"${bandColumns}
     FROM "FlightSummary" s JOIN "Flight" f ON f."id" = s."flightId"
     WHERE ${where}`;
   if (!band) return candidates;
   // MSL limits are the same for every run and stay constants for the planner; AGL limits come from each candidate.
-  const lowM = band.reference === "msl" ? realSql(engine, band.baseM) : raw(`c."bandBaseMslM"`);
-  const highM = band.reference === "msl" ? realSql(engine, band.topM) : raw(`c."bandTopMslM"`);
+  const lowM = band.reference === "msl" ? dialect.real(band.baseM) : sql`c."bandBaseMslM"`;
+  const highM = band.reference === "msl" ? dialect.real(band.topM) : sql`c."bandTopMslM"`;
   // x is the altitude in km from the band middle, which keeps the sums well conditioned.
   const x = sql`((l."altitudeM" - (${lowM} + ${highM}) / 2.0) / 1000.0)`;
   // The candidates are materialised and drive the join (CROSS JOIN fixes the order on SQLite), so each
@@ -403,10 +394,9 @@ async function loadBandLevels(handle: DbLike, runIds: readonly string[], phase: 
     const chunk = runIds.slice(i, i + 500);
     const statement = sql`SELECT l."runId" AS "runId", l."altitudeM" AS "altitudeM", l."baseM" AS "baseM", l."topM" AS "topM", l."temperatureK" AS "temperatureK"
       FROM "ProfileLevel" l
-      WHERE l."runId" IN ${listSql(chunk)} AND l."phase" = ${phase}
+      WHERE l."runId" IN ${list(chunk)} AND l."phase" = ${phase}
       ORDER BY l."runId", l."altitudeM"`;
-    const { text, values } = forEngine(statement, handle.engine);
-    const rows = await handle.db.$queryRawUnsafe<Array<{ runId: string; altitudeM: unknown; baseM: unknown; topM: unknown; temperatureK: unknown }>>(text, ...values);
+    const rows = await handle.db.$queryRaw<Array<{ runId: string; altitudeM: unknown; baseM: unknown; topM: unknown; temperatureK: unknown }>>(statement);
     for (const row of rows) {
       const altitudeM = toNumber(row.altitudeM);
       const baseM = toNumber(row.baseM);
@@ -528,16 +518,16 @@ function kmText(m: number): string {
 
 /** Mean temperature per altitude bin and group over the candidate flights' levels of the chosen phase. */
 async function loadProfiles(viewer: Viewer, query: ClimatologyQuery, handle: DbLike): Promise<Map<string, ProfileLevelMean[]>> {
-  const where = andSql(filterConditions(viewer, query, handle.engine));
-  const statement = sql`SELECT ${groupKeySql(query, handle.engine)} AS "groupKey", l."baseM" AS "baseM", l."topM" AS "topM",
+  const dialect = dialectFor(handle.engine);
+  const where = and(filterConditions(viewer, query, dialect));
+  const statement = sql`SELECT ${groupKeySql(query, dialect)} AS "groupKey", l."baseM" AS "baseM", l."topM" AS "topM",
       COUNT(*) AS n, AVG(l."temperatureK") AS "meanK", AVG((l."temperatureK" - 250.0) * (l."temperatureK" - 250.0)) AS "meanSq"
     FROM "FlightSummary" s JOIN "Flight" f ON f."id" = s."flightId"
       JOIN "ProfileLevel" l ON l."runId" = s."runId" AND l."phase" = ${query.phase}
     WHERE ${where}
     GROUP BY 1, 2, 3
     ORDER BY 1, 2`;
-  const { text, values } = forEngine(statement, handle.engine);
-  const rows = await handle.db.$queryRawUnsafe<Array<{ groupKey: unknown; baseM: unknown; topM: unknown; n: unknown; meanK: unknown; meanSq: unknown }>>(text, ...values);
+  const rows = await handle.db.$queryRaw<Array<{ groupKey: unknown; baseM: unknown; topM: unknown; n: unknown; meanK: unknown; meanSq: unknown }>>(statement);
   const out = new Map<string, ProfileLevelMean[]>();
   for (const row of rows) {
     const key = keyText(row.groupKey);
@@ -564,21 +554,18 @@ function isTrue(value: unknown): boolean {
 
 /** Does the viewer see at least one real (not invented) flight with a current summary? */
 async function anyRealFlightVisible(viewer: Viewer, handle: DbLike): Promise<boolean> {
-  const visibility = visibilitySql(viewer, "f");
   const statement = sql`SELECT 1 AS "one" FROM "FlightSummary" s JOIN "Flight" f ON f."id" = s."flightId"
-    WHERE ${andSql([raw(`s."isCurrent" = TRUE`), { text: visibility.text, values: visibility.values }, raw(`f."synthetic" = FALSE`)])}
+    WHERE ${and([sql`s."isCurrent" = TRUE`, visibilitySql(viewer, "f"), sql`f."synthetic" = FALSE`])}
     LIMIT 1`;
-  const { text, values } = forEngine(statement, handle.engine);
-  return (await handle.db.$queryRawUnsafe<unknown[]>(text, ...values)).length > 0;
+  return (await handle.db.$queryRaw<unknown[]>(statement)).length > 0;
 }
 
 /** Invented flights that pass every other filter, for the count of those the rule left out. */
 async function countInventedLeftOut(viewer: Viewer, query: ClimatologyQuery, handle: DbLike): Promise<number> {
-  const conditions = filterConditions(viewer, { ...query, invented: "include" }, handle.engine);
+  const conditions = filterConditions(viewer, { ...query, invented: "include" }, dialectFor(handle.engine));
   const statement = sql`SELECT COUNT(*) AS n FROM "FlightSummary" s JOIN "Flight" f ON f."id" = s."flightId"
-    WHERE ${andSql([...conditions, raw(`f."synthetic" = TRUE`)])}`;
-  const { text, values } = forEngine(statement, handle.engine);
-  const rows = await handle.db.$queryRawUnsafe<Array<{ n: unknown }>>(text, ...values);
+    WHERE ${and([...conditions, sql`f."synthetic" = TRUE`])}`;
+  const rows = await handle.db.$queryRaw<Array<{ n: unknown }>>(statement);
   return toNumber(rows[0]?.n) ?? 0;
 }
 
@@ -600,10 +587,9 @@ export async function getClimatology(
   const rule = query.invented;
   const includeInvented = rule === "include" || (rule === "auto" && !(await anyRealFlightVisible(viewer, handle)));
   query = { ...query, invented: includeInvented ? "include" : "exclude" };
-  const statement = candidateSql(viewer, query, handle.engine);
-  const { text, values } = forEngine(statement, handle.engine);
+  const statement = candidateSql(viewer, query, dialectFor(handle.engine));
   const [rows, profiles, leftOutCount] = await Promise.all([
-    handle.db.$queryRawUnsafe<CandidateRow[]>(text, ...values),
+    handle.db.$queryRaw<CandidateRow[]>(statement),
     options.profiles === false ? Promise.resolve(new Map<string, ProfileLevelMean[]>()) : loadProfiles(viewer, query, handle),
     includeInvented ? Promise.resolve(0) : countInventedLeftOut(viewer, query, handle),
   ]);

@@ -14,10 +14,9 @@ import path from "node:path";
 import pg from "pg";
 import { computeBandLapseRate } from "../../lib/analysis/layers.ts";
 import type { ProfileLevel } from "../../lib/analysis/types.ts";
-import { createDb, type DbHandle } from "../../lib/db/index.ts";
+import { createDb, Prisma, type DbHandle } from "../../lib/db/index.ts";
 import { applyMigrations } from "../../lib/db/migrate.ts";
 import { getClimatology } from "../../lib/query/climatology-core.ts";
-import { forEngine, sql } from "../../lib/query/climatology-sql.ts";
 import { parseClimatologyQuery } from "../../lib/query/climatology-params.ts";
 import { writeSyntheticArchive } from "../../seed/synthetic-archive.ts";
 import type { BenchResult } from "./types.ts";
@@ -52,12 +51,11 @@ function query(record: Record<string, string>) {
 
 /** Baseline: the same in-band levels read into memory, grouped per run in JS and fitted with computeBandLapseRate. */
 async function bandInJs(handle: DbHandle): Promise<number> {
-  const statement = sql`SELECT l."runId" AS "runId", l."altitudeM" AS "altitudeM", l."baseM" AS "baseM", l."topM" AS "topM", l."temperatureK" AS "temperatureK"
+  const statement = Prisma.sql`SELECT l."runId" AS "runId", l."altitudeM" AS "altitudeM", l."baseM" AS "baseM", l."topM" AS "topM", l."temperatureK" AS "temperatureK"
     FROM "ProfileLevel" l JOIN "FlightSummary" s ON s."runId" = l."runId" JOIN "Flight" f ON f."id" = s."flightId"
     WHERE s."isCurrent" = TRUE AND f."deletedAt" IS NULL AND s."qcFlagged" = FALSE AND l."phase" = ${"ascent"}
       AND l."altitudeM" >= ${BAND_BASE_M} AND l."altitudeM" <= ${BAND_TOP_M}`;
-  const { text, values } = forEngine(statement, handle.engine);
-  const rows = await handle.db.$queryRawUnsafe<Array<{ runId: string; altitudeM: number; baseM: number; topM: number; temperatureK: number }>>(text, ...values);
+  const rows = await handle.db.$queryRaw<Array<{ runId: string; altitudeM: number; baseM: number; topM: number; temperatureK: number }>>(statement);
   const byRun = new Map<string, ProfileLevel[]>();
   for (const r of rows) {
     const list = byRun.get(r.runId) ?? [];

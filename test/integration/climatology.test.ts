@@ -5,9 +5,9 @@ import { computeBandLapseRate } from "../../lib/analysis/layers.ts";
 import type { ProfileLevel } from "../../lib/analysis/types.ts";
 import { flightVisibilityWhere, type Viewer } from "../../lib/auth/visibility.ts";
 import { visibilitySql } from "../../lib/auth/visibility-sql.ts";
+import { Prisma } from "../../lib/db/index.ts";
 import { ingestFlightFile } from "../../lib/ingest/index.ts";
 import { ClimatologyQueryError, getClimatology, type ClimatologyResult } from "../../lib/query/climatology.ts";
-import { forEngine } from "../../lib/query/climatology-sql.ts";
 import { climatologyQuerySchema, parseClimatologyQuery } from "../../lib/query/climatology-params.ts";
 import { mulberry32 } from "../../lib/stats/index.ts";
 import { COMMA_COUNTS_LAYOUT, LINEAR_10BIT_CALIBRATION, renderLoggerFile } from "../../seed/demo-files.ts";
@@ -307,8 +307,7 @@ describe.each(testEngines())("climatology on %s (demo subset)", (engine) => {
     for (const viewer of viewers) {
       const viaPrisma = (await database.db.flight.findMany({ where: flightVisibilityWhere(viewer), select: { id: true } })).map((f) => f.id).sort();
       const condition = visibilitySql(viewer, "f");
-      const { text, values } = forEngine({ text: `SELECT f."id" AS id FROM "Flight" f WHERE ${condition.text}`, values: condition.values }, database.engine);
-      const viaSql = (await database.db.$queryRawUnsafe<Array<{ id: string }>>(text, ...values)).map((r) => r.id).sort();
+      const viaSql = (await database.db.$queryRaw<Array<{ id: string }>>(Prisma.sql`SELECT f."id" AS id FROM "Flight" f WHERE ${condition}`)).map((r) => r.id).sort();
       expect(viaSql, viewer.kind).toEqual(viaPrisma);
       counts.push(viaSql.length);
     }

@@ -6,7 +6,8 @@ import {
   parseMonthSelection,
   searchRecord,
 } from "../../lib/query/climatology-params";
-import { andSql, forEngine, listSql, sql } from "../../lib/query/climatology-sql";
+import { Prisma } from "../../lib/db/index.ts";
+import { and, list } from "../../lib/db/dialect.ts";
 import { bandLapseRateFromLevels, bandLapseRateFromSums, sumsSpreadTooSmall } from "../../lib/query/climatology-core";
 import { computeBandLapseRate } from "../../lib/analysis/layers";
 
@@ -102,9 +103,9 @@ describe("parseClimatologyQuery", () => {
 
 describe("SQL fragments", () => {
   test("values are bound, never inlined, and renumbered for PostgreSQL", () => {
-    const f = andSql([sql`s."siteId" IN ${listSql(["a", "b"])}`, sql`s."localHour" >= ${6}`]);
-    expect(forEngine(f, "sqlite")).toEqual({ text: `(s."siteId" IN (?, ?)) AND (s."localHour" >= ?)`, values: ["a", "b", 6] });
-    expect(forEngine(f, "postgres").text).toBe(`(s."siteId" IN ($1, $2)) AND (s."localHour" >= $3)`);
+    const f = and([Prisma.sql`s."siteId" IN ${list(["a", "b"])}`, Prisma.sql`s."localHour" >= ${6}`]);
+    expect({ text: f.sql, values: f.values }).toEqual({ text: `(s."siteId" IN (?, ?)) AND (s."localHour" >= ?)`, values: ["a", "b", 6] });
+    expect(f.text).toBe(`(s."siteId" IN ($1, $2)) AND (s."localHour" >= $3)`);
   });
 });
 
