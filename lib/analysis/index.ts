@@ -10,6 +10,8 @@ import { computePhaseLayers, type ProfilePoint } from "./layers";
 import { HEIGHT_REFERENCES } from "./band-coverage";
 import { detectFlightSegments } from "./segment";
 import { findTropopauses } from "./tropopause";
+import { dewPointK, findSaturatedLayers, liftingCondensationLevel, precipitableWater } from "./humidity";
+import { freezingLevelsM, mixedLayerHeightGradient, mixedLayerHeightParcel } from "./boundary-layer";
 import {
   ANALYSIS_VERSION,
   DEFAULT_ANALYSIS_PARAMETERS,
@@ -44,6 +46,8 @@ export * from "./binning";
 export * from "./tropopause";
 export * from "./layers";
 export * from "./band-coverage";
+export * from "./humidity";
+export * from "./boundary-layer";
 export { cleanSamples, TEMPERATURE_RANGE_K, ALTITUDE_RANGE_M } from "./clean";
 
 /** Ascent samples within this height above launch give the surface temperature, m [P]. */
@@ -104,6 +108,8 @@ function emptySummary(groundElevationM: number | null = null): FlightSummaryValu
     tropopauseAltitudeM: null, tropopauseTemperatureK: null, tropopausePressureHpa: null, secondTropopauseAltitudeM: null,
     surfaceInversionDepthM: null, surfaceInversionStrengthK: null, hasSurfaceInversion: false,
     stratosphericLapseRateKPerKm: null, hasDescent: false, hasPressure: false, hasHumidity: false,
+    surfaceDewPointK: null, lclAltitudeM: null, precipitableWaterMm: null, saturatedLayerCount: null, lowestSaturatedLayerBaseM: null,
+    freezingLevelAltitudeM: null, freezingLevelCount: 0, mixedLayerHeightM: null, mixedLayerHeightGradientM: null,
   };
 }
 
@@ -146,6 +152,66 @@ function surfacePoint(series: CleanSeries, from: number, to: number, groundM: nu
 }
 
 const nullable = (v: number): number | null => (Number.isFinite(v) ? v : null);
+
+/** Mean relative humidity of the samples the surface point uses; null unless every one has humidity. */
+function surfaceRelativeHumidityPct(series: CleanSeries, from: number, to: number, groundM: number): number | null {
+  let sum = 0;
+  let n = 0;
+  for (let i = from; i < to; i++) {
+    if ((series.altitudeM[i] as number) - groundM > SURFACE_LAYER_M) continue;
+    const rh = series.relativeHumidityPct[i] as number;
+    if (rh !== rh) return null;
+    sum += rh;
+    n++;
+  }
+  return n === 0 ? null : sum / n;
+}
+
+/** Humidity, freezing-level and mixed-layer quantities of the ascent (REFERENCE.md §14–§19). */
+function moistAndMixedLayer(
+  ascentLevels: readonly ProfileLevel[],
+  surface: ProfilePoint | null,
+  surfaceRhPct: number | null,
+  warnings: QcWarning[],
+  flags: string[],
+): Partial<FlightSummaryValues> {
+  const out: Partial<FlightSummaryValues> = {};
+  const freezing = freezingLevelsM(ascentLevels);
+  out.freezingLevelAltitudeM = freezing[0] ?? null;
+  out.freezingLevelCount = freezing.length;
+  if (freezing.length > 1) warnings.push({ code: "several-freezing-levels", message: `The ascent crosses 0 °C ${freezing.length} times; the lowest crossing is reported.` });
+  let standardPressureUsed = false;
+  if (surface) {
+    const parcel = mixedLayerHeightParcel(surface, ascentLevels);
+    const gradient = mixedLayerHeightGradient(surface, ascentLevels);
+    out.mixedLayerHeightM = parcel === null ? null : nullable(parcel.heightM);
+    out.mixedLayerHeightGradientM = gradient === null ? null : nullable(gradient.heightM);
+    standardPressureUsed ||= (parcel?.pressureFromStandardAtmosphere ?? false) || (gradient?.pressureFromStandardAtmosphere ?? false);
+  }
+  if (surface && surfaceRhPct !== null) {
+    const td = dewPointK(surface.temperatureK, surfaceRhPct);
+    out.surfaceDewPointK = td === null ? null : nullable(td);
+    const lcl = td === null ? null : liftingCondensationLevel(surface.temperatureK, td);
+    out.lclAltitudeM = lcl === null ? null : nullable(surface.altitudeM + lcl.heightM);
+  }
+  const withHumidity = ascentLevels.filter((l) => l.relativeHumidityPct !== null);
+  if (withHumidity.length > 0) {
+    const saturated = findSaturatedLayers(ascentLevels);
+    out.saturatedLayerCount = saturated.length;
+    out.lowestSaturatedLayerBaseM = saturated[0]?.baseM ?? null;
+    const pw = precipitableWater(ascentLevels);
+    out.precipitableWaterMm = pw === null ? null : nullable(pw.valueMm);
+    standardPressureUsed ||= pw?.pressureFromStandardAtmosphere ?? false;
+  }
+  if (standardPressureUsed) {
+    flags.push("standard-atmosphere-pressure");
+    warnings.push({
+      code: "standard-atmosphere-pressure",
+      message: "Levels without measured pressure: potential temperature (mixed-layer height) and precipitable water use the standard-atmosphere pressure of each altitude.",
+    });
+  }
+  return out;
+}
 
 /** QC flags of a faulty temperature sensor: a tropopause found in such a profile does not count. */
 export const SENSOR_FAULT_FLAGS: readonly string[] = ["temperature-stuck", "temperature-alternating"];
@@ -323,6 +389,10 @@ function analyse(input: FlightAnalysisInput): FlightAnalysis {
     stratosphericLapseRateKPerKm: stratosphere?.lapseRateKPerKm ?? null,
     hasDescent,
   } satisfies Partial<FlightSummaryValues>);
+  Object.assign(
+    summary,
+    moistAndMixedLayer(ascentLevels, surface, surfaceRelativeHumidityPct(series, launchIndex, burstIndex + 1, launchAltitudeM), qc.warnings, qc.flags),
+  );
 
   return {
     analysisVersion: ANALYSIS_VERSION,

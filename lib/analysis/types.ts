@@ -4,7 +4,7 @@
  */
 
 /** Bump whenever a change can alter any stored analysis result. */
-export const ANALYSIS_VERSION = "1.2.0";
+export const ANALYSIS_VERSION = "1.3.0";
 
 import type { BandSpec } from "./band-coverage";
 
@@ -245,6 +245,22 @@ export interface FlightSummaryValues {
   hasDescent: boolean;
   hasPressure: boolean;
   hasHumidity: boolean;
+  /** Dew point over water of the surface point (REFERENCE.md §14), K; null without humidity. */
+  surfaceDewPointK: number | null;
+  /** Lifting condensation level of the surface parcel, m above mean sea level (REFERENCE.md §15). */
+  lclAltitudeM: number | null;
+  /** Precipitable water up to the top of the humidity data, mm ≡ kg/m² (REFERENCE.md §17). */
+  precipitableWaterMm: number | null;
+  /** Saturated (cloud) layers on the ascent by the RH-threshold method (REFERENCE.md §16); null without humidity. */
+  saturatedLayerCount: number | null;
+  lowestSaturatedLayerBaseM: number | null;
+  /** Lowest 0 °C crossing on the ascent, m above mean sea level, and how many crossings (REFERENCE.md §18). */
+  freezingLevelAltitudeM: number | null;
+  freezingLevelCount: number;
+  /** Mixed-layer height above ground by the parcel method (Holzworth 1964), m (REFERENCE.md §19). */
+  mixedLayerHeightM: number | null;
+  /** Mixed-layer height above ground by the maximum θ gradient, m (REFERENCE.md §19). */
+  mixedLayerHeightGradientM: number | null;
 }
 
 export interface FlightAnalysis {

@@ -327,6 +327,11 @@ export async function writeAnalysisRun(
       secondTropopauseAltitudeM: finiteOrNull(s.secondTropopauseAltitudeM),
       hasSurfaceInversion: s.hasSurfaceInversion, surfaceInversionDepthM: finiteOrNull(s.surfaceInversionDepthM),
       surfaceInversionStrengthK: finiteOrNull(s.surfaceInversionStrengthK), stratosphericLapseRateKPerKm: finiteOrNull(s.stratosphericLapseRateKPerKm),
+      surfaceDewPointK: finiteOrNull(s.surfaceDewPointK), lclAltitudeM: finiteOrNull(s.lclAltitudeM),
+      precipitableWaterMm: finiteOrNull(s.precipitableWaterMm), saturatedLayerCount: s.saturatedLayerCount,
+      lowestSaturatedLayerBaseM: finiteOrNull(s.lowestSaturatedLayerBaseM), freezingLevelAltitudeM: finiteOrNull(s.freezingLevelAltitudeM),
+      freezingLevelCount: s.freezingLevelCount, mixedLayerHeightM: finiteOrNull(s.mixedLayerHeightM),
+      mixedLayerHeightGradientM: finiteOrNull(s.mixedLayerHeightGradientM),
       hasDescent: s.hasDescent, groundElevationM: finiteOrNull(s.groundElevationM), qcFlags: analysis.qc.flags.join(","), qcFlagged,
     },
   });

@@ -42,6 +42,12 @@ export const METRIC_INFO: Readonly<Record<ClimatologyMetric, MetricInfo>> = {
   "surface-inversion-strength": { key: "surface-inversion-strength", label: "surface-inversion strength", unit: "K", missingReason: "no surface inversion" },
   "surface-temperature": { key: "surface-temperature", label: "surface temperature", unit: "K", missingReason: "no surface temperature" },
   "max-altitude": { key: "max-altitude", label: "maximum altitude", unit: "km", missingReason: "no altitude" },
+  "surface-dew-point": { key: "surface-dew-point", label: "surface dew point", unit: "K", missingReason: "no surface humidity (or analysed before 1.3.0)" },
+  "lcl-altitude": { key: "lcl-altitude", label: "lifting condensation level (above sea level)", unit: "km", missingReason: "no surface humidity (or analysed before 1.3.0)" },
+  "precipitable-water": { key: "precipitable-water", label: "precipitable water up to the top of the humidity data", unit: "mm", missingReason: "no humidity profile (or analysed before 1.3.0)" },
+  "freezing-level-altitude": { key: "freezing-level-altitude", label: "lowest freezing level (above sea level)", unit: "km", missingReason: "no 0 °C crossing on the ascent (or analysed before 1.3.0)" },
+  "mixed-layer-height": { key: "mixed-layer-height", label: "mixed-layer height, parcel method (above ground)", unit: "m", missingReason: "no mixed-layer top found (or analysed before 1.3.0)" },
+  "mixed-layer-height-gradient": { key: "mixed-layer-height-gradient", label: "mixed-layer height, maximum θ gradient (above ground)", unit: "m", missingReason: "no θ increase found (or analysed before 1.3.0)" },
 };
 
 /** A query the database cannot answer as asked: unknown ids, no flights, an empty claim group. 422 from the API. */
@@ -184,6 +190,12 @@ const METRIC_VALUE_SQL: Readonly<Record<Exclude<ClimatologyMetric, "band-lapse-r
   "surface-inversion-strength": `CASE WHEN s."hasSurfaceInversion" = TRUE THEN s."surfaceInversionStrengthK" END`,
   "surface-temperature": `s."surfaceTemperatureK"`,
   "max-altitude": `s."maxAltitudeM" / 1000.0`,
+  "surface-dew-point": `s."surfaceDewPointK"`,
+  "lcl-altitude": `s."lclAltitudeM" / 1000.0`,
+  "precipitable-water": `s."precipitableWaterMm"`,
+  "freezing-level-altitude": `s."freezingLevelAltitudeM" / 1000.0`,
+  "mixed-layer-height": `s."mixedLayerHeightM"`,
+  "mixed-layer-height-gradient": `s."mixedLayerHeightGradientM"`,
 };
 
 const sql = Prisma.sql;

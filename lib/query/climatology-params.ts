@@ -27,6 +27,12 @@ export const CLIMATOLOGY_METRICS = [
   "surface-inversion-strength",
   "surface-temperature",
   "max-altitude",
+  "surface-dew-point",
+  "lcl-altitude",
+  "precipitable-water",
+  "freezing-level-altitude",
+  "mixed-layer-height",
+  "mixed-layer-height-gradient",
 ] as const;
 export type ClimatologyMetric = (typeof CLIMATOLOGY_METRICS)[number];
 

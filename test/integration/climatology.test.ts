@@ -114,6 +114,33 @@ describe.each(testEngines())("climatology on %s (demo subset)", (engine) => {
     expect(lean.claim?.p).toBeCloseTo(full.claim?.p ?? Number.NaN, 10);
   });
 
+  test("the 1.3.0 metrics read the stored summary values (mixed-layer height by hours after sunrise is one query)", async () => {
+    const rows = (await summaries()).filter((r) => !r.qcFlagged);
+    const cases = [
+      { metric: "mixed-layer-height", value: (r: (typeof rows)[number]) => r.mixedLayerHeightM },
+      { metric: "mixed-layer-height-gradient", value: (r: (typeof rows)[number]) => r.mixedLayerHeightGradientM },
+      { metric: "freezing-level-altitude", value: (r: (typeof rows)[number]) => (r.freezingLevelAltitudeM === null ? null : r.freezingLevelAltitudeM / 1000) },
+      { metric: "lcl-altitude", value: (r: (typeof rows)[number]) => (r.lclAltitudeM === null ? null : r.lclAltitudeM / 1000) },
+      { metric: "precipitable-water", value: (r: (typeof rows)[number]) => r.precipitableWaterMm },
+      { metric: "surface-dew-point", value: (r: (typeof rows)[number]) => r.surfaceDewPointK },
+    ];
+    expect(rows.filter((r) => r.mixedLayerHeightM !== null).length).toBeGreaterThan(10);
+    for (const c of cases) {
+      const expected = rows.filter((r) => c.value(r) !== null);
+      const result = await attempt(getClimatology(LOCAL, query({ metric: c.metric, groupBy: "none" }), database));
+      if (expected.length === 0) {
+        expect(result instanceof ClimatologyQueryError || result.overall.n === 0).toBe(true);
+        continue;
+      }
+      if (result instanceof ClimatologyQueryError) throw result;
+      expect(result.overall.n).toBe(expected.length);
+      const flights = result.groups.flatMap((g) => g.flights);
+      for (const f of flights) expect(f.value).toBeCloseTo(c.value(rows.find((r) => r.flightId === f.flightId)!) as number, 9);
+    }
+    const bySunrise = await getClimatology(LOCAL, query({ metric: "mixed-layer-height", groupBy: "hours-after-sunrise" }), database);
+    expect(bySunrise.groups.reduce((n, g) => n + g.n, 0)).toBe(rows.filter((r) => r.mixedLayerHeightM !== null && r.hoursAfterSunrise !== null).length);
+  });
+
   test("filters (site, months, launch hour, QC) select the same flights as a filter written in the test", async () => {
     const rows = await summaries();
     const site = subset.program.sites[0];

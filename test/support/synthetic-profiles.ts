@@ -35,6 +35,8 @@ export function standardAtmosphereTemperatureK(altitudeM: number): number {
 }
 
 export interface SyntheticFlightOptions {
+  /** Relative humidity over water (%) at an altitude; without it rows have no humidity. */
+  relativeHumidityAtAltitudePct?: (altitudeM: number) => number;
   /** Air temperature profile, K. */
   temperatureAtAltitudeK: (altitudeM: number) => number;
   groundM?: number;
@@ -131,7 +133,7 @@ export function syntheticFlight(options: SyntheticFlightOptions): RawSample[] {
       altitudeM: z + (spikes.get(k) ?? 0),
       rawTemperature: sensorK + noiseK * noise(),
       pressureHpa: pressureAt ? pressureAt(z) : null,
-      relativeHumidityPct: null,
+      relativeHumidityPct: options.relativeHumidityAtAltitudePct ? options.relativeHumidityAtAltitudePct(z) : null,
       latitudeDeg: 45,
       longitudeDeg: 7,
       sourceLine: k + 2,

@@ -17,6 +17,12 @@ export const METRIC_CHOICES: Record<ClimatologyMetric, string> = {
   "surface-inversion-strength": "Surface-inversion strength (K)",
   "surface-temperature": "Surface temperature (K)",
   "max-altitude": "Maximum altitude (km)",
+  "surface-dew-point": "Surface dew point (K)",
+  "lcl-altitude": "Lifting condensation level (km above sea level)",
+  "precipitable-water": "Precipitable water (mm)",
+  "freezing-level-altitude": "Freezing level, lowest (km above sea level)",
+  "mixed-layer-height": "Mixed-layer height, parcel method (m above ground)",
+  "mixed-layer-height-gradient": "Mixed-layer height, θ gradient (m above ground)",
 };
 
 export const BAND_REFERENCE_CHOICES: Record<HeightReference, string> = {

@@ -95,6 +95,18 @@ export default async function FlightPage({ params }: { params: Params }) {
               <dd>{summary.hasSurfaceInversion ? `${formatMetres(summary.surfaceInversionDepthM)} deep, +${formatNumber(summary.surfaceInversionStrengthK, 1)} K` : "none"}</dd>
             </div>
             <div><dt>Stratospheric lapse rate</dt><dd>{formatLapseRate(summary.stratosphericLapseRateKPerKm)}</dd></div>
+            <div>
+              <dt>Freezing level (MSL)</dt>
+              <dd>{formatKm(summary.freezingLevelAltitudeM)}{(summary.freezingLevelCount ?? 0) > 1 ? ` (lowest of ${summary.freezingLevelCount} crossings)` : ""}</dd>
+            </div>
+            <div><dt>Mixed-layer height (AGL)</dt><dd>{formatMetres(summary.mixedLayerHeightM)} <span className="muted small">parcel method; {formatMetres(summary.mixedLayerHeightGradientM)} by the maximum θ gradient</span></dd></div>
+            <div><dt>Surface dew point</dt><dd>{formatCelsius(summary.surfaceDewPointK)}</dd></div>
+            <div><dt>Lifting condensation level (MSL)</dt><dd>{formatKm(summary.lclAltitudeM)}</dd></div>
+            <div><dt>Precipitable water</dt><dd>{summary.precipitableWaterMm === null ? "—" : `${formatNumber(summary.precipitableWaterMm, 1)} mm`} <span className="muted small">up to the top of the humidity data</span></dd></div>
+            <div>
+              <dt>Saturated layers</dt>
+              <dd>{summary.saturatedLayerCount === null ? "—" : summary.saturatedLayerCount === 0 ? "none" : `${summary.saturatedLayerCount}, lowest base ${formatKm(summary.lowestSaturatedLayerBaseM)}`} <span className="muted small">RH threshold, Wang &amp; Rossow (1995)</span></dd>
+            </div>
             <div><dt>Ground (site elevation, MSL)</dt><dd>{formatMetres(summary.groundElevationM)} <span className="muted small">heights above ground level (AGL) start here</span></dd></div>
             <div><dt>Launch altitude (MSL)</dt><dd>{formatMetres(summary.launchAltitudeM)}</dd></div>
             <div><dt>Burst altitude (MSL)</dt><dd>{formatKm(summary.burstAltitudeM)}</dd></div>

@@ -76,9 +76,12 @@ describe("datapackage.json", () => {
 
   // CF standard names used, each in the CF standard name table [S: REFERENCE.md §10 lists most; latitude,
   // longitude, solar_elevation_angle and tropopause_air_pressure are table entries too [Mem]].
-  const CF_NAMES = new Set(["air_temperature", "air_pressure", "relative_humidity", "altitude", "tropopause_altitude", "tropopause_air_temperature", "tropopause_air_pressure", "air_temperature_lapse_rate", "latitude", "longitude", "solar_elevation_angle"]);
+  const CF_NAMES = new Set(["air_temperature", "air_pressure", "relative_humidity", "altitude", "tropopause_altitude", "tropopause_air_temperature", "tropopause_air_pressure", "air_temperature_lapse_rate", "latitude", "longitude", "solar_elevation_angle",
+    // analysis 1.3.0 fields: dew_point_temperature (K), atmosphere_mass_content_of_water_vapor (kg m-2), freezing_level_altitude (m),
+    // atmosphere_boundary_layer_thickness (m) are CF standard-name table entries [Mem]
+    "dew_point_temperature", "atmosphere_mass_content_of_water_vapor", "freezing_level_altitude", "atmosphere_boundary_layer_thickness"]);
   test("CF standard names come from the known list and sit on fields with a matching unit", () => {
-    const unitOf: Record<string, RegExp> = { air_temperature: /^K$/, tropopause_air_temperature: /^K$/, air_pressure: /^hPa$/, tropopause_air_pressure: /^hPa$/, altitude: /^m$/, tropopause_altitude: /^m$/, air_temperature_lapse_rate: /^K km-1$/, relative_humidity: /^%$/, latitude: /^degrees_north$/, longitude: /^degrees_east$/, solar_elevation_angle: /^degree$/ };
+    const unitOf: Record<string, RegExp> = { air_temperature: /^K$/, tropopause_air_temperature: /^K$/, air_pressure: /^hPa$/, tropopause_air_pressure: /^hPa$/, altitude: /^m$/, tropopause_altitude: /^m$/, air_temperature_lapse_rate: /^K km-1$/, relative_humidity: /^%$/, latitude: /^degrees_north$/, longitude: /^degrees_east$/, solar_elevation_angle: /^degree$/, dew_point_temperature: /^K$/, atmosphere_mass_content_of_water_vapor: /^kg m-2$/, freezing_level_altitude: /^m$/, atmosphere_boundary_layer_thickness: /^m$/ };
     let count = 0;
     for (const table of TABLES) {
       for (const f of table.fields) {
