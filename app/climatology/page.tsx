@@ -5,6 +5,7 @@ import { climatologySearchParams, parseClimatologyQuery, searchRecord, type Clim
 import { listSchoolsAndSites } from "@/lib/query/setup";
 import { getViewer } from "@/app/_lib/viewer";
 import { formatNumber } from "@/app/_lib/format";
+import { claimDigits, formatClaimNumber } from "@/lib/stats/claims";
 import { ClimatologyQueryForm, METRIC_CHOICES } from "@/app/_components/climatology/query-form";
 import { HEIGHT_REFERENCE_WORDS } from "@/lib/analysis/band-coverage";
 import { ClaimResult, GroupFlights, GroupStatisticsTable, digitsForUnit } from "@/app/_components/climatology/result-tables";
@@ -22,7 +23,10 @@ const SIDE_WORDS = { "two-sided": "equals", greater: "is greater than", less: "i
 function claimStatement(query: ClimatologyQuery, result: ClimatologyResult): string {
   const metric = result.metric.label;
   if (query.claim === "one-sample") {
-    return `the mean ${metric} ${SIDE_WORDS[query.claimSide]} ${formatNumber(query.claimValue ?? null, digitsForUnit(result.metric.unit) + 1)} ${result.metric.unit}.`;
+    // Same decimals as the verdict (lib/stats claimDigits/formatClaimNumber).
+    const digits = result.claim?.digits ?? claimDigits([query.claimValue, query.claimTolerance]);
+    const tolerance = query.claimTolerance === undefined ? "" : ` ± ${formatClaimNumber(query.claimTolerance, digits)}`;
+    return `the mean ${metric} ${SIDE_WORDS[query.claimSide]} ${formatClaimNumber(query.claimValue ?? null, digits)}${tolerance} ${result.metric.unit}.`;
   }
   const a = query.groupA?.label ?? "A";
   const b = query.groupB?.label ?? "B";

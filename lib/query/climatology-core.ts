@@ -711,6 +711,7 @@ export async function getClimatology(
       kind: "one-sample",
       alternative: query.claimSide,
       statedValue: query.claimValue,
+      ...(query.claimTolerance === undefined ? {} : { tolerance: query.claimTolerance }),
       group: { label: "all flights", values: allValues, siteIds: groups.flatMap((g) => valuesOf.get(g.key)?.siteNames ?? []) },
       metricLabel,
       unit: metric.unit,

@@ -233,6 +233,8 @@ const climatologyBaseSchema = z.object({
   claim: enumWithDefault(CLAIM_KINDS, "none", "claim"),
   claimValue: optionalNumber("claimValue", -1e6, 1e6),
   claimSide: enumWithDefault(CLAIM_SIDES, "two-sided", "claimSide"),
+  // --- claims: tolerance of an "equals" claim (6.5 ± 0.3), tested as equivalence ---
+  claimTolerance: optionalNumber("claimTolerance (± tolerance of the stated value)", 0, 1e6),
   groupA: monthSelectionField("groupA"),
   groupB: monthSelectionField("groupB"),
 });
@@ -282,6 +284,14 @@ export const climatologyQuerySchema = climatologyBaseSchema.superRefine((q, ctx)
   }
   if (q.claim === "one-sample" && q.claimValue === undefined) {
     ctx.addIssue({ code: "custom", path: ["claimValue"], message: "a one-sample claim needs the stated value (e.g. 6.5 for 6.5 K/km)" });
+  }
+  // --- claims: a tolerance belongs to a one-sample "equals" claim and must be above zero ---
+  if (q.claimTolerance !== undefined) {
+    if (q.claim !== "one-sample" || q.claimSide !== "two-sided") {
+      ctx.addIssue({ code: "custom", path: ["claimTolerance"], message: "a tolerance belongs to an \"equals\" claim (one-sample, two-sided)" });
+    } else if (!(q.claimTolerance > 0)) {
+      ctx.addIssue({ code: "custom", path: ["claimTolerance"], message: "the tolerance must be above 0 (e.g. 0.3 for 6.5 ± 0.3 K/km)" });
+    }
   }
   if (q.claim === "two-group") {
     if (!q.groupA) ctx.addIssue({ code: "custom", path: ["groupA"], message: "a two-group claim needs group A (e.g. summer or JJA)" });
@@ -381,6 +391,7 @@ export function climatologySearchParams(query: ClimatologyQuery, raw: Record<str
     set("claim", query.claim);
     set("claimSide", query.claimSide);
     if (query.claim === "one-sample") set("claimValue", query.claimValue);
+    if (query.claim === "one-sample" && query.claimTolerance !== undefined) set("claimTolerance", query.claimTolerance);
     if (query.claim === "two-group") {
       set("groupA", selectionText(query.groupA, raw.groupA?.trim() || undefined));
       set("groupB", selectionText(query.groupB, raw.groupB?.trim() || undefined));

@@ -211,6 +211,7 @@ export function ClimatologyQueryForm({
             </select>
           </div>
           <TextField name="claimValue" label="Stated value (in the metric's unit)" type="number" step="any" values={values} errors={errors} placeholder="6.5" />
+          <TextField name="claimTolerance" label="Tolerance ± (optional; tests “equals” as equivalence)" type="number" step="any" values={values} errors={errors} placeholder="0.3" />
           <TextField name="groupA" label="Group A" values={values} errors={errors} list="c-season-suggestions" placeholder="summer" hint={SEASON_HINT} />
           <TextField name="groupB" label="Group B" values={values} errors={errors} list="c-season-suggestions" placeholder="Oct-Nov" />
         </div>

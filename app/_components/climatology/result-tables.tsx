@@ -113,6 +113,8 @@ const OUTCOME_WORDS: Record<ClaimCheckResult["outcome"], string> = {
   "not-shown": "Not shown",
   consistent: "Consistent with the data",
   contradicted: "Contradicted",
+  equivalent: "Within the stated tolerance",
+  inconclusive: "Neither shown",
   undetermined: "Cannot be tested",
 };
 
@@ -131,8 +133,13 @@ function intervalText(low: number | null, high: number | null, digits: number, u
 /** The claim check: verdict first, then the numbers behind it and the caveats. */
 export function ClaimResult({ claim, statement }: { claim: ClaimCheckResult; statement: string }) {
   const unit = claim.unit;
-  const digits = Math.max(2, digitsForUnit(unit));
-  const outcomeClass = claim.outcome === "supported" || claim.outcome === "consistent" ? "notice-ok" : claim.outcome === "undetermined" ? "notice-warn" : "notice-error";
+  const digits = claim.digits;
+  const outcomeClass =
+    claim.outcome === "supported" || claim.outcome === "consistent" || claim.outcome === "equivalent"
+      ? "notice-ok"
+      : claim.outcome === "undetermined" || claim.outcome === "inconclusive"
+        ? "notice-warn"
+        : "notice-error";
   return (
     <section aria-labelledby="claim-heading" className="claim-result">
       <h2 id="claim-heading">Claim check</h2>
@@ -155,6 +162,12 @@ export function ClaimResult({ claim, statement }: { claim: ClaimCheckResult; sta
         <div><dt>95 % confidence interval</dt><dd>{intervalText(claim.ci95.low, claim.ci95.high, digits, unit)}</dd></div>
         <div><dt>t statistic</dt><dd>{formatNumber(claim.t, 3)} (df {formatNumber(claim.df, 1)})</dd></div>
         <div><dt>p-value</dt><dd>{pText(claim.p)}</dd></div>
+        {claim.equivalence && (
+          <div>
+            <dt>Equivalence (two one-sided tests, ±{formatNumber(claim.tolerance, digits)} {unit})</dt>
+            <dd>p {pText(claim.equivalence.p)}, {Math.round(claim.equivalence.interval.level * 100)} % CI {intervalText(claim.equivalence.interval.low, claim.equivalence.interval.high, digits, unit)}</dd>
+          </div>
+        )}
         {claim.rankCheck && <div><dt>Mann–Whitney check</dt><dd>U = {formatNumber(claim.rankCheck.u, 1)}, p {pText(claim.rankCheck.p)} ({claim.rankCheck.method})</dd></div>}
         <div><dt>Effect size (Hedges&apos; g)</dt><dd>{formatNumber(claim.hedgesG, 2)}</dd></div>
         <div><dt>Minimum detectable difference (80 % power, α = {claim.alpha})</dt><dd>{formatNumber(claim.minimumDetectableDifference, digits)} {unit}</dd></div>
