@@ -28,8 +28,9 @@ function claimStatement(query: ClimatologyQuery, result: ClimatologyResult): str
     const tolerance = query.claimTolerance === undefined ? "" : ` ± ${formatClaimNumber(query.claimTolerance, digits)}`;
     return `the mean ${metric} ${SIDE_WORDS[query.claimSide]} ${formatClaimNumber(query.claimValue ?? null, digits)}${tolerance} ${result.metric.unit}.`;
   }
-  const a = query.groupA?.label ?? "A";
-  const b = query.groupB?.label ?? "B";
+  // Labels as the check used them (site and school ids replaced by names).
+  const a = result.claim?.groups[0]?.label ?? query.groupA?.label ?? "A";
+  const b = result.claim?.groups[1]?.label ?? query.groupB?.label ?? "B";
   const relation = query.claimSide === "greater" ? "is higher in" : query.claimSide === "less" ? "is lower in" : "differs between";
   return query.claimSide === "two-sided" ? `the mean ${metric} differs between ${a} (A) and ${b} (B).` : `the mean ${metric} ${relation} ${a} (A) than in ${b} (B).`;
 }

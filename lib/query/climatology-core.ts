@@ -22,7 +22,14 @@ import {
 } from "../analysis/band-coverage.ts";
 import { fitOrdinaryLeastSquares } from "../analysis/regression.ts";
 import { andSql, forEngine, listSql, raw, sql, type SqlEngine, type SqlFragment } from "./climatology-sql.ts";
-import { monthAbbreviation, type ClimatologyMetric, type ClimatologyQuery, type MonthSelection } from "./climatology-params.ts";
+import {
+  claimGroupConditions,
+  monthAbbreviation,
+  type ClaimGroup,
+  type ClimatologyMetric,
+  type ClimatologyQuery,
+  type MonthSelection,
+} from "./climatology-params.ts";
 
 export interface MetricInfo {
   key: ClimatologyMetric;
@@ -47,7 +54,7 @@ export const METRIC_INFO: Readonly<Record<ClimatologyMetric, MetricInfo>> = {
 /** A query the database cannot answer as asked: unknown ids, no flights, an empty claim group. 422 from the API. */
 export class ClimatologyQueryError extends Error {
   constructor(
-    readonly code: "unknown-reference" | "no-flights" | "empty-group",
+    readonly code: "unknown-reference" | "no-flights" | "empty-group" | "overlapping-groups",
     message: string,
     readonly field: string | null = null,
   ) {
@@ -190,6 +197,22 @@ function selectionSql(selection: MonthSelection): SqlFragment {
   return selection.kind === "season-name" ? sql`s."seasonName" = ${selection.name}` : sql`s."month" IN ${listSql(selection.months)}`;
 }
 
+// --- claims: claim-group SQL, rendered from the shared claimGroupConditions (climatology-params.ts) ---
+/** The SQL of a claim group: every condition of claimGroupConditions, joined by AND. */
+function claimGroupSql(group: ClaimGroup): SqlFragment {
+  const parts = claimGroupConditions(group).map((c): SqlFragment => {
+    const column = raw(`s."${c.column}"`);
+    if ("equals" in c) return sql`${column} = ${c.equals}`;
+    if ("in" in c) return sql`${column} IN ${listSql(c.in)}`;
+    return sql`(${column} >= ${c.fromInclusive} AND ${column} < ${c.toExclusive})`;
+  });
+  return andSql(parts);
+}
+
+/** Group key "AB": a flight that meets both claim groups (refused in getClimatology). */
+const BOTH_GROUPS_KEY = "AB";
+// --- end of claims: claim-group SQL ---
+
 /** Local launch date as YYYY-MM-DD on either engine (SQLite keeps DateTime as ISO text). */
 function dateConditions(engine: SqlEngine, from: string | undefined, to: string | undefined): SqlFragment[] {
   const out: SqlFragment[] = [];
@@ -226,7 +249,7 @@ function filterConditions(viewer: Viewer, query: ClimatologyQuery, engine: SqlEn
   if (query.invented === "exclude") c.push(raw(`f."synthetic" = FALSE`));
   if (query.minCoverageKm !== undefined) c.push(sql`(s."maxAltitudeM" - s."minAltitudeM") >= ${query.minCoverageKm * 1000}`);
   if (query.claim === "two-group" && query.groupA && query.groupB) {
-    c.push(sql`(${selectionSql(query.groupA)}) OR (${selectionSql(query.groupB)})`);
+    c.push(sql`(${claimGroupSql(query.groupA)}) OR (${claimGroupSql(query.groupB)})`);
   }
   return c;
 }
@@ -241,7 +264,9 @@ function hourBinSql(engine: SqlEngine, column: string, widthH: number): SqlFragm
 /** The SQL expression whose value names a flight's group; the same expression groups the mean profiles. */
 function groupKeySql(query: ClimatologyQuery, engine: SqlEngine): SqlFragment {
   if (query.claim === "two-group" && query.groupA && query.groupB) {
-    return sql`CASE WHEN ${selectionSql(query.groupA)} THEN ${"A"} WHEN ${selectionSql(query.groupB)} THEN ${"B"} END`;
+    const a = claimGroupSql(query.groupA);
+    const b = claimGroupSql(query.groupB);
+    return sql`CASE WHEN (${a}) AND (${b}) THEN ${BOTH_GROUPS_KEY} WHEN ${a} THEN ${"A"} WHEN ${b} THEN ${"B"} END`;
   }
   switch (query.groupBy) {
     case "none":
@@ -453,7 +478,7 @@ function formatBinHour(hour: number): string {
 }
 
 function groupLabel(query: ClimatologyQuery, key: string, names: { sites: Map<string, string>; schools: Map<string, string> }): string {
-  if (query.claim === "two-group") return key === "A" ? `A: ${query.groupA?.label ?? "A"}` : `B: ${query.groupB?.label ?? "B"}`;
+  if (query.claim === "two-group") return key === "A" ? `A: ${claimGroupLabel(query.groupA, names)}` : `B: ${claimGroupLabel(query.groupB, names)}`;
   switch (query.groupBy) {
     case "none":
       return "All flights";
@@ -519,7 +544,30 @@ async function checkReferences(handle: DbLike, query: ClimatologyQuery) {
       throw new ClimatologyQueryError("no-flights", "none of the chosen sites belongs to the chosen schools; the filters contradict each other", "site");
     }
   }
+  // --- claims: site and school ids named in claim groups must exist too ---
+  if (query.claim === "two-group") {
+    for (const [field, group] of [["groupA", query.groupA], ["groupB", query.groupB]] as const) {
+      for (const part of group?.parts ?? []) {
+        if (part.kind !== "site" && part.kind !== "school") continue;
+        const known = part.kind === "site" ? siteNames : schoolNames;
+        const unknown = part.ids.filter((id) => !known.has(id));
+        if (unknown.length) throw new ClimatologyQueryError("unknown-reference", `unknown ${part.kind} id${unknown.length > 1 ? "s" : ""}: ${unknown.join(", ")}`, field);
+      }
+    }
+  }
   return { sites: siteNames, schools: schoolNames };
+}
+
+/** A claim group's label with site and school ids replaced by their names. */
+function claimGroupLabel(group: ClaimGroup | undefined, names: { sites: Map<string, string>; schools: Map<string, string> }): string {
+  if (!group) return "?";
+  return group.parts
+    .map((part) => {
+      if (part.kind === "site") return part.ids.map((id) => names.sites.get(id) ?? id).join(", ");
+      if (part.kind === "school") return part.ids.map((id) => names.schools.get(id) ?? id).join(", ");
+      return part.label;
+    })
+    .join(", ");
 }
 
 function kmText(m: number): string {
@@ -607,6 +655,17 @@ export async function getClimatology(
     options.profiles === false ? Promise.resolve(new Map<string, ProfileLevelMean[]>()) : loadProfiles(viewer, query, handle),
     includeInvented ? Promise.resolve(0) : countInventedLeftOut(viewer, query, handle),
   ]);
+  // --- claims: a flight that meets both claim groups would count twice; refuse, naming how many ---
+  if (query.claim === "two-group") {
+    const both = rows.filter((row) => keyText(row.groupKey) === BOTH_GROUPS_KEY).length;
+    if (both > 0) {
+      throw new ClimatologyQueryError(
+        "overlapping-groups",
+        `${both} flight${both === 1 ? " meets" : "s meet"} both group A (${claimGroupLabel(query.groupA, names)}) and group B (${claimGroupLabel(query.groupB, names)}); a flight cannot be in both groups, so narrow one of them`,
+        "groupB",
+      );
+    }
+  }
   const metric = METRIC_INFO[query.metric];
   const band = bandOf(query);
   const excludedByReason = new Map<string, number>();
@@ -719,7 +778,7 @@ export async function getClimatology(
   } else if (query.claim === "two-group") {
     const a = groups.find((g) => g.key === "A");
     const b = groups.find((g) => g.key === "B");
-    for (const [group, field, label] of [[a, "groupA", query.groupA?.label], [b, "groupB", query.groupB?.label]] as const) {
+    for (const [group, field, label] of [[a, "groupA", claimGroupLabel(query.groupA, names)], [b, "groupB", claimGroupLabel(query.groupB, names)]] as const) {
       if (!group) {
         throw new ClimatologyQueryError("empty-group", `group ${field === "groupA" ? "A" : "B"} (${label ?? "?"}) has no flight with a ${metric.label} under these filters`, field);
       }
@@ -728,8 +787,8 @@ export async function getClimatology(
       claim = runClaimCheck({
         kind: "two-group",
         alternative: query.claimSide,
-        groupA: { label: query.groupA?.label ?? "A", values: valuesOf.get("A")?.values ?? [], siteIds: valuesOf.get("A")?.siteNames ?? [] },
-        groupB: { label: query.groupB?.label ?? "B", values: valuesOf.get("B")?.values ?? [], siteIds: valuesOf.get("B")?.siteNames ?? [] },
+        groupA: { label: claimGroupLabel(query.groupA, names), values: valuesOf.get("A")?.values ?? [], siteIds: valuesOf.get("A")?.siteNames ?? [] },
+        groupB: { label: claimGroupLabel(query.groupB, names), values: valuesOf.get("B")?.values ?? [], siteIds: valuesOf.get("B")?.siteNames ?? [] },
         metricLabel,
         unit: metric.unit,
       });
