@@ -8,7 +8,7 @@ import { formatNumber } from "@/app/_lib/format";
 import { claimDigits, formatClaimNumber } from "@/lib/stats/claims";
 import { ClimatologyQueryForm, METRIC_CHOICES } from "@/app/_components/climatology/query-form";
 import { HEIGHT_REFERENCE_WORDS } from "@/lib/analysis/band-coverage";
-import { ClaimResult, GroupFlights, GroupStatisticsTable, digitsForUnit } from "@/app/_components/climatology/result-tables";
+import { ClaimResult, CrossTableView, GroupFlights, GroupStatisticsTable, digitsForUnit } from "@/app/_components/climatology/result-tables";
 import { GroupBoxPlot, GroupProfiles, MetricScatter } from "@/app/_components/climatology/climatology-charts";
 import { buildClimatologyCharts } from "@/app/_components/climatology/chart-data";
 import { ExportPanel } from "@/app/_components/export/export-panel";
@@ -110,6 +110,12 @@ export default async function ClimatologyPage({ searchParams }: { searchParams: 
           {result.claim && <ClaimResult claim={result.claim} statement={claimStatement(parsed.query, result)} />}
           <h2>Groups</h2>
           <GroupStatisticsTable result={result} />
+          {result.crossTable && (
+            <>
+              <h2>Cross-table</h2>
+              <CrossTableView result={result} />
+            </>
+          )}
           <GroupBoxPlot charts={charts} />
           <h2>Against {parsed.query.chartX === "day-of-year" ? "day of year" : "launch hour"}</h2>
           <MetricScatter charts={charts} />

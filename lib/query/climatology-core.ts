@@ -131,6 +131,25 @@ export interface InventedFlightsUse {
   leftOutCount: number;
 }
 
+/** One cell of the cross-table: the flights in row group `rowKey` and column group `columnKey`. */
+export interface CrossTableCell {
+  rowKey: string;
+  columnKey: string;
+  n: number;
+  mean: number | null;
+  ci95Low: number | null;
+  ci95High: number | null;
+}
+
+export interface CrossTable {
+  /** The second grouping (the columns); the rows are the result's groups. */
+  by: ClimatologyQuery["crossBy"];
+  rows: Array<{ key: string; label: string }>;
+  columns: Array<{ key: string; label: string }>;
+  /** Cells with at least one flight, rows then columns in table order. */
+  cells: CrossTableCell[];
+}
+
 export interface ClimatologyResult {
   metric: MetricInfo;
   /** The band as asked: limits in m above `reference` (agl: each flight's ground, msl: sea level). */
@@ -143,6 +162,8 @@ export interface ClimatologyResult {
   excludedCount: number;
   profiles: GroupProfile[];
   claim: ClaimCheckResult | null;
+  /** groupBy × crossBy: n, mean and 95 % CI per cell (null without crossBy). */
+  crossTable: CrossTable | null;
   invented: InventedFlightsUse;
   warnings: string[];
 }
@@ -161,6 +182,7 @@ interface CandidateRow {
   localHour: unknown;
   hoursAfterSunrise: unknown;
   groupKey: unknown;
+  crossKey?: unknown;
   value: unknown;
   groundElevationM?: unknown;
   bandN?: unknown;
@@ -261,6 +283,16 @@ function hourBinSql(engine: SqlEngine, column: string, widthH: number): SqlFragm
   return raw(`(CAST((${column} + 48.0) / ${widthH}.0 AS INTEGER) - ${48 / widthH})`);
 }
 
+/** The query as seen by the cross-table's second grouping: crossBy in place of groupBy, no claim groups. */
+function crossQuery(query: ClimatologyQuery): ClimatologyQuery {
+  return { ...query, groupBy: query.crossBy, claim: "none" };
+}
+
+/** `, <key> AS "crossKey"` when the query asks for a cross-table. */
+function crossKeyColumn(query: ClimatologyQuery, engine: SqlEngine): SqlFragment {
+  return query.crossBy === "none" ? raw("") : sql`, ${groupKeySql(crossQuery(query), engine)} AS "crossKey"`;
+}
+
 /** The SQL expression whose value names a flight's group; the same expression groups the mean profiles. */
 function groupKeySql(query: ClimatologyQuery, engine: SqlEngine): SqlFragment {
   if (query.claim === "two-group" && query.groupA && query.groupB) {
@@ -324,7 +356,7 @@ function candidateSql(viewer: Viewer, query: ClimatologyQuery, engine: SqlEngine
   const valueSql = band ? raw("NULL") : raw(METRIC_VALUE_SQL[query.metric as Exclude<ClimatologyMetric, "band-lapse-rate">]);
   if (!band && query.flights === "none") {
     // Summary only: the group key, the value and the site (for the claim's clustering caveat).
-    return sql`SELECT s."siteId" AS "siteId", f."synthetic" AS "synthetic", ${groupKeySql(query, engine)} AS "groupKey", ${valueSql} AS "value"
+    return sql`SELECT s."siteId" AS "siteId", f."synthetic" AS "synthetic", ${groupKeySql(query, engine)} AS "groupKey"${crossKeyColumn(query, engine)}, ${valueSql} AS "value"
       FROM "FlightSummary" s JOIN "Flight" f ON f."id" = s."flightId"
       WHERE ${where}`;
   }
@@ -334,7 +366,7 @@ function candidateSql(viewer: Viewer, query: ClimatologyQuery, engine: SqlEngine
     : raw("");
   const candidates = sql`SELECT s."flightId" AS "flightId", s."runId" AS "runId", f."title" AS "title", s."siteId" AS "siteId", f."synthetic" AS "synthetic",
       s."schoolId" AS "schoolId", ${raw(launchIso)} AS "launchAtUtc", s."dayOfYear" AS "dayOfYear", s."localHour" AS "localHour",
-      s."hoursAfterSunrise" AS "hoursAfterSunrise", ${groupKeySql(query, engine)} AS "groupKey", ${valueSql} AS "value"${bandColumns}
+      s."hoursAfterSunrise" AS "hoursAfterSunrise", ${groupKeySql(query, engine)} AS "groupKey"${crossKeyColumn(query, engine)}, ${valueSql} AS "value"${bandColumns}
     FROM "FlightSummary" s JOIN "Flight" f ON f."id" = s."flightId"
     WHERE ${where}`;
   if (!band) return candidates;
@@ -519,6 +551,35 @@ function groupOrder(query: ClimatologyQuery, key: string, label: string): [numbe
   }
 }
 
+/** The cross-table from the collected values: rows in group order, columns in the second grouping's order. */
+function buildCrossTable(
+  query: ClimatologyQuery,
+  groups: readonly ClimatologyGroup[],
+  cells: Map<string, Map<string, number[]>>,
+  names: { sites: Map<string, string>; schools: Map<string, string> },
+): CrossTable {
+  const cross = crossQuery(query);
+  const columnKeys = new Set<string>();
+  for (const byColumn of cells.values()) for (const key of byColumn.keys()) columnKeys.add(key);
+  const columns = [...columnKeys]
+    .map((key) => ({ key, label: groupLabel(cross, key, names) }))
+    .sort((a, b) => {
+      const [ra, ta] = groupOrder(cross, a.key, a.label);
+      const [rb, tb] = groupOrder(cross, b.key, b.label);
+      return ra - rb || ta.localeCompare(tb);
+    });
+  const out: CrossTableCell[] = [];
+  for (const group of groups) {
+    for (const column of columns) {
+      const values = cells.get(group.key)?.get(column.key);
+      if (!values || values.length === 0) continue;
+      const d = describe(values);
+      out.push({ rowKey: group.key, columnKey: column.key, n: d.n, mean: d.mean, ci95Low: d.ci95Low, ci95High: d.ci95High });
+    }
+  }
+  return { by: query.crossBy, rows: groups.map((g) => ({ key: g.key, label: g.label })), columns, cells: out };
+}
+
 /** Canonical text of a group key: SQLite and PostgreSQL return numbers, integers and text differently. */
 function keyText(value: unknown): string | null {
   if (value === null || value === undefined) return null;
@@ -675,6 +736,8 @@ export async function getClimatology(
   const includeFlights = query.flights === "all";
   const byGroup = new Map<string, { values: number[]; siteNames: string[]; flights: ClimatologyFlight[] }>();
   let inventedContributing = 0;
+  /** Cross-table values: row group key → column key → values. */
+  const crossCells = new Map<string, Map<string, number[]>>();
 
   // Runs the sums cannot decide (bins not contiguous, or altitudes that hardly spread) are decided from their levels.
   let levelsOf = new Map<string, Array<BandLevel & { temperatureK: number }>>();
@@ -710,6 +773,14 @@ export async function getClimatology(
       continue;
     }
     if (isTrue(row.synthetic)) inventedContributing++;
+    if (query.crossBy !== "none") {
+      const crossKey = keyText(row.crossKey);
+      if (crossKey !== null) {
+        const cell = crossCells.get(key)?.get(crossKey);
+        if (cell) cell.push(value);
+        else crossCells.set(key, (crossCells.get(key) ?? new Map<string, number[]>()).set(crossKey, [value]));
+      }
+    }
     const siteName = names.sites.get(row.siteId) ?? row.siteId;
     const entry = byGroup.get(key) ?? { values: [], siteNames: [], flights: [] };
     byGroup.set(key, entry);
@@ -795,6 +866,8 @@ export async function getClimatology(
     }
   }
 
+  const crossTable = query.crossBy === "none" ? null : buildCrossTable(query, groups, crossCells, names);
+
   const warnings: string[] = [];
   if (inventedContributing > 0) warnings.push(`${inventedContributing} of the ${allValues.length} contributing flights ${inventedContributing === 1 ? "is" : "are"} invented (demo or test data, not measurements)`);
   if (excludedCount > 0) warnings.push(`${excludedCount} flight${excludedCount === 1 ? "" : "s"} excluded: ${excluded.map((e) => `${e.reason} (${e.count})`).join("; ")}`);
@@ -808,6 +881,7 @@ export async function getClimatology(
     excludedCount,
     profiles: groups.map((g) => ({ key: g.key, label: g.label, levels: profiles.get(g.key) ?? [] })),
     claim,
+    crossTable,
     invented: { rule, included: includeInvented, contributingCount: inventedContributing, leftOutCount },
     warnings,
   };

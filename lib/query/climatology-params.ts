@@ -432,6 +432,8 @@ const climatologyBaseSchema = z.object({
    */
   bandReference: enumWithDefault(HEIGHT_REFERENCES, "msl", "bandReference"),
   groupBy: enumWithDefault(CLIMATOLOGY_GROUPINGS, "season", "groupBy"),
+  // --- claims: a second grouping for a cross-table of n, mean and 95 % CI (groupBy × crossBy) ---
+  crossBy: enumWithDefault(CLIMATOLOGY_GROUPINGS, "none", "crossBy"),
   binHours: z.preprocess(
     blankToUndefined,
     z.coerce
@@ -493,6 +495,10 @@ export const climatologyQuerySchema = climatologyBaseSchema.superRefine((q, ctx)
     }
   } else if (q.phase === "descent") {
     ctx.addIssue({ code: "custom", path: ["phase"], message: "only the band lapse rate can use the descent; the other metrics come from the stored ascent summary" });
+  }
+  // --- claims: the cross-table needs a second grouping different from the first ---
+  if (q.crossBy !== "none" && q.crossBy === q.groupBy && q.claim !== "two-group") {
+    ctx.addIssue({ code: "custom", path: ["crossBy"], message: `crossBy (${q.crossBy}) must differ from groupBy; choose a second grouping` });
   }
   if (q.claim === "one-sample" && q.claimValue === undefined) {
     ctx.addIssue({ code: "custom", path: ["claimValue"], message: "a one-sample claim needs the stated value (e.g. 6.5 for 6.5 K/km)" });
@@ -595,6 +601,7 @@ export function climatologySearchParams(query: ClimatologyQuery, raw: Record<str
     set("bandReference", query.bandReference);
   }
   set("groupBy", query.groupBy);
+  if (query.crossBy !== "none") set("crossBy", query.crossBy);
   if (query.groupBy === "launch-hour" || query.groupBy === "hours-after-sunrise") set("binHours", query.binHours);
   if (query.chartX !== "day-of-year") set("chartX", query.chartX);
   if (query.flights !== "all") set("flights", query.flights);

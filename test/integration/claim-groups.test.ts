@@ -1,3 +1,4 @@
+import jStat from "jstat";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import type { Viewer } from "../../lib/auth/visibility.ts";
 import { getClimatology } from "../../lib/query/climatology.ts";
@@ -108,6 +109,39 @@ describe.each(testEngines())("claims on any grouping on %s", (engine) => {
       code: "unknown-reference",
       field: "groupA",
     });
+  });
+
+  test("cross-table season × site: each cell's n, mean and CI equal a direct computation", async () => {
+    const rows = await candidates();
+    const result = await getClimatology(LOCAL, query({ groupBy: "season", crossBy: "site" }), database);
+    const table = result.crossTable;
+    if (!table) throw new Error("no cross-table");
+    expect(table.by).toBe("site");
+    const expected = new Map<string, number[]>();
+    const values = await database.db.flightSummary.findMany({ where: { isCurrent: true, qcFlagged: false, troposphericLapseRateKPerKm: { not: null } } });
+    for (const r of values) {
+      const key = `${r.seasonName}|${r.siteId}`;
+      expected.set(key, [...(expected.get(key) ?? []), r.troposphericLapseRateKPerKm as number]);
+    }
+    expect(table.cells.length).toBe(expected.size);
+    expect(table.cells.reduce((s, c) => s + c.n, 0)).toBe(rows.length);
+    for (const cell of table.cells) {
+      const v = expected.get(`${cell.rowKey}|${cell.columnKey}`) ?? [];
+      // [D] mean and t-based 95 % CI written out here, independent of lib/stats
+      const n = v.length;
+      const mean = v.reduce((s, x) => s + x, 0) / n;
+      expect(cell.n).toBe(n);
+      expect(cell.mean).toBeCloseTo(mean, 10);
+      if (n >= 2) {
+        const sd = Math.sqrt(v.reduce((s, x) => s + (x - mean) ** 2, 0) / (n - 1));
+        const half = jStat.studentt.inv(0.975, n - 1) * (sd / Math.sqrt(n));
+        expect(cell.ci95Low).toBeCloseTo(mean - half, 9);
+        expect(cell.ci95High).toBeCloseTo(mean + half, 9);
+      }
+    }
+    const sites = await database.db.site.findMany();
+    expect(table.columns.map((c) => c.label).sort()).toEqual(sites.filter((s) => values.some((v) => v.siteId === s.id)).map((s) => s.name).sort());
+    expect(parseClimatologyQuery({ groupBy: "site", crossBy: "site" }).ok).toBe(false);
   });
 
   test("an equals claim with a tolerance is tested as equivalence", async () => {

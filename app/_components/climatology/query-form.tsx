@@ -182,6 +182,13 @@ export function ClimatologyQueryForm({
             </select>
           </div>
           <div className="field">
+            <label htmlFor="c-cross">Cross-table by</label>
+            <select id="c-cross" name="crossBy" defaultValue={values.crossBy ?? "none"} aria-describedby={errors.crossBy ? "c-cross-error" : undefined}>
+              {CLIMATOLOGY_GROUPINGS.map((g) => <option key={g} value={g}>{g === "none" ? "No cross-table" : GROUPING_CHOICES[g]}</option>)}
+            </select>
+            <FieldErrors errors={errors.crossBy} id="c-cross-error" />
+          </div>
+          <div className="field">
             <label htmlFor="c-bin">Hour bin width</label>
             <select id="c-bin" name="binHours" defaultValue={values.binHours ?? "3"}>
               {HOUR_BIN_WIDTHS.map((w) => <option key={w} value={String(w)}>{w} h</option>)}

@@ -28,6 +28,43 @@ function StatCells({ stats, digits }: { stats: GroupStatistics; digits: number }
 }
 
 /** n, mean, SD, SEM, median, IQR, min, max and 95 % CI per group, plus all groups together. */
+/** groupBy × crossBy: each cell gives n, mean and the 95 % CI of the mean; empty cells show a dash. */
+export function CrossTableView({ result }: { result: ClimatologyResult }) {
+  const table = result.crossTable;
+  if (!table) return null;
+  const unit = result.metric.unit;
+  const digits = digitsForUnit(unit);
+  const cellOf = new Map(table.cells.map((c) => [`${c.rowKey}\u0000${c.columnKey}`, c]));
+  return (
+    <div className="table-wrap" role="region" aria-label="Cross-table" tabIndex={0}>
+      <table>
+        <caption>{result.metric.label.charAt(0).toUpperCase() + result.metric.label.slice(1)} per group and {table.by}: flights (n), mean and t-based 95 % CI of the mean, in {unit}.</caption>
+        <thead>
+          <tr>
+            <th scope="col">Group</th>
+            {table.columns.map((c) => <th key={c.key} scope="col" className="num">{c.label}</th>)}
+          </tr>
+        </thead>
+        <tbody>
+          {table.rows.map((r) => (
+            <tr key={r.key}>
+              <th scope="row">{r.label}</th>
+              {table.columns.map((c) => {
+                const cell = cellOf.get(`${r.key}\u0000${c.key}`);
+                return (
+                  <td key={c.key} className="num">
+                    {cell ? <>n = {cell.n}, {formatNumber(cell.mean, digits)}<br /><span className="muted small">{cell.ci95Low === null ? "no CI" : `${formatNumber(cell.ci95Low, digits)} to ${formatNumber(cell.ci95High, digits)}`}</span></> : "—"}
+                  </td>
+                );
+              })}
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </div>
+  );
+}
+
 export function GroupStatisticsTable({ result }: { result: ClimatologyResult }) {
   const unit = result.metric.unit;
   const digits = digitsForUnit(unit);
