@@ -5,9 +5,10 @@ import { climatologySearchParams, parseClimatologyQuery, searchRecord, type Clim
 import { listSchoolsAndSites } from "@/lib/query/setup";
 import { getViewer } from "@/app/_lib/viewer";
 import { formatNumber } from "@/app/_lib/format";
+import { claimDigits, formatClaimNumber } from "@/lib/stats/claims";
 import { ClimatologyQueryForm, METRIC_CHOICES } from "@/app/_components/climatology/query-form";
 import { HEIGHT_REFERENCE_WORDS } from "@/lib/analysis/band-coverage";
-import { ClaimResult, GroupFlights, GroupStatisticsTable, digitsForUnit } from "@/app/_components/climatology/result-tables";
+import { ClaimResult, CrossTableView, GroupFlights, GroupStatisticsTable, digitsForUnit } from "@/app/_components/climatology/result-tables";
 import { GroupBoxPlot, GroupProfiles, MetricScatter } from "@/app/_components/climatology/climatology-charts";
 import { buildClimatologyCharts } from "@/app/_components/climatology/chart-data";
 import { ExportPanel } from "@/app/_components/export/export-panel";
@@ -22,10 +23,14 @@ const SIDE_WORDS = { "two-sided": "equals", greater: "is greater than", less: "i
 function claimStatement(query: ClimatologyQuery, result: ClimatologyResult): string {
   const metric = result.metric.label;
   if (query.claim === "one-sample") {
-    return `the mean ${metric} ${SIDE_WORDS[query.claimSide]} ${formatNumber(query.claimValue ?? null, digitsForUnit(result.metric.unit) + 1)} ${result.metric.unit}.`;
+    // Same decimals as the verdict (lib/stats claimDigits/formatClaimNumber).
+    const digits = result.claim?.digits ?? claimDigits([query.claimValue, query.claimTolerance]);
+    const tolerance = query.claimTolerance === undefined ? "" : ` ± ${formatClaimNumber(query.claimTolerance, digits)}`;
+    return `the mean ${metric} ${SIDE_WORDS[query.claimSide]} ${formatClaimNumber(query.claimValue ?? null, digits)}${tolerance} ${result.metric.unit}.`;
   }
-  const a = query.groupA?.label ?? "A";
-  const b = query.groupB?.label ?? "B";
+  // Labels as the check used them (site and school ids replaced by names).
+  const a = result.claim?.groups[0]?.label ?? query.groupA?.label ?? "A";
+  const b = result.claim?.groups[1]?.label ?? query.groupB?.label ?? "B";
   const relation = query.claimSide === "greater" ? "is higher in" : query.claimSide === "less" ? "is lower in" : "differs between";
   return query.claimSide === "two-sided" ? `the mean ${metric} differs between ${a} (A) and ${b} (B).` : `the mean ${metric} ${relation} ${a} (A) than in ${b} (B).`;
 }
@@ -105,6 +110,12 @@ export default async function ClimatologyPage({ searchParams }: { searchParams: 
           {result.claim && <ClaimResult claim={result.claim} statement={claimStatement(parsed.query, result)} />}
           <h2>Groups</h2>
           <GroupStatisticsTable result={result} />
+          {result.crossTable && (
+            <>
+              <h2>Cross-table</h2>
+              <CrossTableView result={result} />
+            </>
+          )}
           <GroupBoxPlot charts={charts} />
           <h2>Against {parsed.query.chartX === "day-of-year" ? "day of year" : "launch hour"}</h2>
           <MetricScatter charts={charts} />

@@ -22,7 +22,14 @@ import {
   type HeightReference,
 } from "../analysis/band-coverage.ts";
 import { fitOrdinaryLeastSquares } from "../analysis/regression.ts";
-import { monthAbbreviation, type ClimatologyMetric, type ClimatologyQuery, type MonthSelection } from "./climatology-params.ts";
+import {
+  claimGroupConditions,
+  monthAbbreviation,
+  type ClaimGroup,
+  type ClimatologyMetric,
+  type ClimatologyQuery,
+  type MonthSelection,
+} from "./climatology-params.ts";
 
 export interface MetricInfo {
   key: ClimatologyMetric;
@@ -53,7 +60,7 @@ export const METRIC_INFO: Readonly<Record<ClimatologyMetric, MetricInfo>> = {
 /** A query the database cannot answer as asked: unknown ids, no flights, an empty claim group. 422 from the API. */
 export class ClimatologyQueryError extends Error {
   constructor(
-    readonly code: "unknown-reference" | "no-flights" | "empty-group",
+    readonly code: "unknown-reference" | "no-flights" | "empty-group" | "overlapping-groups",
     message: string,
     readonly field: string | null = null,
   ) {
@@ -130,6 +137,25 @@ export interface InventedFlightsUse {
   leftOutCount: number;
 }
 
+/** One cell of the cross-table: the flights in row group `rowKey` and column group `columnKey`. */
+export interface CrossTableCell {
+  rowKey: string;
+  columnKey: string;
+  n: number;
+  mean: number | null;
+  ci95Low: number | null;
+  ci95High: number | null;
+}
+
+export interface CrossTable {
+  /** The second grouping (the columns); the rows are the result's groups. */
+  by: ClimatologyQuery["crossBy"];
+  rows: Array<{ key: string; label: string }>;
+  columns: Array<{ key: string; label: string }>;
+  /** Cells with at least one flight, rows then columns in table order. */
+  cells: CrossTableCell[];
+}
+
 export interface ClimatologyResult {
   metric: MetricInfo;
   /** The band as asked: limits in m above `reference` (agl: each flight's ground, msl: sea level). */
@@ -142,6 +168,8 @@ export interface ClimatologyResult {
   excludedCount: number;
   profiles: GroupProfile[];
   claim: ClaimCheckResult | null;
+  /** groupBy × crossBy: n, mean and 95 % CI per cell (null without crossBy). */
+  crossTable: CrossTable | null;
   invented: InventedFlightsUse;
   warnings: string[];
 }
@@ -160,6 +188,7 @@ interface CandidateRow {
   localHour: unknown;
   hoursAfterSunrise: unknown;
   groupKey: unknown;
+  crossKey?: unknown;
   value: unknown;
   groundElevationM?: unknown;
   bandN?: unknown;
@@ -205,6 +234,22 @@ function selectionSql(selection: MonthSelection): SqlFragment {
   return selection.kind === "season-name" ? sql`s."seasonName" = ${selection.name}` : sql`s."month" IN ${list(selection.months)}`;
 }
 
+// --- claims: claim-group SQL, rendered from the shared claimGroupConditions (climatology-params.ts) ---
+/** The SQL of a claim group: every condition of claimGroupConditions, joined by AND. */
+function claimGroupSql(group: ClaimGroup): SqlFragment {
+  const parts = claimGroupConditions(group).map((c): SqlFragment => {
+    const column = Prisma.raw(`s."${c.column}"`); // a column name from the fixed list in claimGroupConditions
+    if ("equals" in c) return sql`${column} = ${c.equals}`;
+    if ("in" in c) return sql`${column} IN ${list(c.in)}`;
+    return sql`(${column} >= ${c.fromInclusive} AND ${column} < ${c.toExclusive})`;
+  });
+  return and(parts);
+}
+
+/** Group key "AB": a flight that meets both claim groups (refused in getClimatology). */
+const BOTH_GROUPS_KEY = "AB";
+// --- end of claims: claim-group SQL ---
+
 /** The launch's UTC day from `from` to `to` (YYYY-MM-DD), either end optional. */
 function dateConditions(dialect: Dialect, from: string | undefined, to: string | undefined): SqlFragment[] {
   const out: SqlFragment[] = [];
@@ -234,7 +279,7 @@ function filterConditions(viewer: Viewer, query: ClimatologyQuery, dialect: Dial
   if (query.invented === "exclude") c.push(sql`f."synthetic" = FALSE`);
   if (query.minCoverageKm !== undefined) c.push(sql`(s."maxAltitudeM" - s."minAltitudeM") >= ${query.minCoverageKm * 1000}`);
   if (query.claim === "two-group" && query.groupA && query.groupB) {
-    c.push(sql`(${selectionSql(query.groupA)}) OR (${selectionSql(query.groupB)})`);
+    c.push(sql`(${claimGroupSql(query.groupA)}) OR (${claimGroupSql(query.groupB)})`);
   }
   return c;
 }
@@ -244,10 +289,22 @@ function hourBinSql(dialect: Dialect, column: SqlFragment, widthH: number): SqlF
   return dialect.floorDivide(column, widthH, 48);
 }
 
+/** The query as seen by the cross-table's second grouping: crossBy in place of groupBy, no claim groups. */
+function crossQuery(query: ClimatologyQuery): ClimatologyQuery {
+  return { ...query, groupBy: query.crossBy, claim: "none" };
+}
+
+/** `, <key> AS "crossKey"` when the query asks for a cross-table. */
+function crossKeyColumn(query: ClimatologyQuery, dialect: Dialect): SqlFragment {
+  return query.crossBy === "none" ? Prisma.empty : sql`, ${groupKeySql(crossQuery(query), dialect)} AS "crossKey"`;
+}
+
 /** The SQL expression whose value names a flight's group; the same expression groups the mean profiles. */
 function groupKeySql(query: ClimatologyQuery, dialect: Dialect): SqlFragment {
   if (query.claim === "two-group" && query.groupA && query.groupB) {
-    return sql`CASE WHEN ${selectionSql(query.groupA)} THEN ${"A"} WHEN ${selectionSql(query.groupB)} THEN ${"B"} END`;
+    const a = claimGroupSql(query.groupA);
+    const b = claimGroupSql(query.groupB);
+    return sql`CASE WHEN (${a}) AND (${b}) THEN ${BOTH_GROUPS_KEY} WHEN ${a} THEN ${"A"} WHEN ${b} THEN ${"B"} END`;
   }
   switch (query.groupBy) {
     case "none":
@@ -302,7 +359,7 @@ function candidateSql(viewer: Viewer, query: ClimatologyQuery, dialect: Dialect)
   const valueSql = band ? sql`NULL` : Prisma.raw(METRIC_VALUE_SQL[query.metric as Exclude<ClimatologyMetric, "band-lapse-rate">]);
   if (!band && query.flights === "none") {
     // Summary only: the group key, the value and the site (for the claim's clustering caveat).
-    return sql`SELECT s."siteId" AS "siteId", f."synthetic" AS "synthetic", ${groupKeySql(query, dialect)} AS "groupKey", ${valueSql} AS "value"
+    return sql`SELECT s."siteId" AS "siteId", f."synthetic" AS "synthetic", ${groupKeySql(query, dialect)} AS "groupKey"${crossKeyColumn(query, dialect)}, ${valueSql} AS "value"
       FROM "FlightSummary" s JOIN "Flight" f ON f."id" = s."flightId"
       WHERE ${where}`;
   }
@@ -312,7 +369,7 @@ function candidateSql(viewer: Viewer, query: ClimatologyQuery, dialect: Dialect)
     : Prisma.empty;
   const candidates = sql`SELECT s."flightId" AS "flightId", s."runId" AS "runId", f."title" AS "title", s."siteId" AS "siteId", f."synthetic" AS "synthetic",
       s."schoolId" AS "schoolId", ${launchIso} AS "launchAtUtc", s."dayOfYear" AS "dayOfYear", s."localHour" AS "localHour",
-      s."hoursAfterSunrise" AS "hoursAfterSunrise", ${groupKeySql(query, dialect)} AS "groupKey", ${valueSql} AS "value"${bandColumns}
+      s."hoursAfterSunrise" AS "hoursAfterSunrise", ${groupKeySql(query, dialect)} AS "groupKey"${crossKeyColumn(query, dialect)}, ${valueSql} AS "value"${bandColumns}
     FROM "FlightSummary" s JOIN "Flight" f ON f."id" = s."flightId"
     WHERE ${where}`;
   if (!band) return candidates;
@@ -455,7 +512,7 @@ function formatBinHour(hour: number): string {
 }
 
 function groupLabel(query: ClimatologyQuery, key: string, names: { sites: Map<string, string>; schools: Map<string, string> }): string {
-  if (query.claim === "two-group") return key === "A" ? `A: ${query.groupA?.label ?? "A"}` : `B: ${query.groupB?.label ?? "B"}`;
+  if (query.claim === "two-group") return key === "A" ? `A: ${claimGroupLabel(query.groupA, names)}` : `B: ${claimGroupLabel(query.groupB, names)}`;
   switch (query.groupBy) {
     case "none":
       return "All flights";
@@ -496,6 +553,35 @@ function groupOrder(query: ClimatologyQuery, key: string, label: string): [numbe
   }
 }
 
+/** The cross-table from the collected values: rows in group order, columns in the second grouping's order. */
+function buildCrossTable(
+  query: ClimatologyQuery,
+  groups: readonly ClimatologyGroup[],
+  cells: Map<string, Map<string, number[]>>,
+  names: { sites: Map<string, string>; schools: Map<string, string> },
+): CrossTable {
+  const cross = crossQuery(query);
+  const columnKeys = new Set<string>();
+  for (const byColumn of cells.values()) for (const key of byColumn.keys()) columnKeys.add(key);
+  const columns = [...columnKeys]
+    .map((key) => ({ key, label: groupLabel(cross, key, names) }))
+    .sort((a, b) => {
+      const [ra, ta] = groupOrder(cross, a.key, a.label);
+      const [rb, tb] = groupOrder(cross, b.key, b.label);
+      return ra - rb || ta.localeCompare(tb);
+    });
+  const out: CrossTableCell[] = [];
+  for (const group of groups) {
+    for (const column of columns) {
+      const values = cells.get(group.key)?.get(column.key);
+      if (!values || values.length === 0) continue;
+      const d = describe(values);
+      out.push({ rowKey: group.key, columnKey: column.key, n: d.n, mean: d.mean, ci95Low: d.ci95Low, ci95High: d.ci95High });
+    }
+  }
+  return { by: query.crossBy, rows: groups.map((g) => ({ key: g.key, label: g.label })), columns, cells: out };
+}
+
 /** Canonical text of a group key: SQLite and PostgreSQL return numbers, integers and text differently. */
 function keyText(value: unknown): string | null {
   if (value === null || value === undefined) return null;
@@ -521,7 +607,30 @@ async function checkReferences(handle: DbLike, query: ClimatologyQuery) {
       throw new ClimatologyQueryError("no-flights", "none of the chosen sites belongs to the chosen schools; the filters contradict each other", "site");
     }
   }
+  // --- claims: site and school ids named in claim groups must exist too ---
+  if (query.claim === "two-group") {
+    for (const [field, group] of [["groupA", query.groupA], ["groupB", query.groupB]] as const) {
+      for (const part of group?.parts ?? []) {
+        if (part.kind !== "site" && part.kind !== "school") continue;
+        const known = part.kind === "site" ? siteNames : schoolNames;
+        const unknown = part.ids.filter((id) => !known.has(id));
+        if (unknown.length) throw new ClimatologyQueryError("unknown-reference", `unknown ${part.kind} id${unknown.length > 1 ? "s" : ""}: ${unknown.join(", ")}`, field);
+      }
+    }
+  }
   return { sites: siteNames, schools: schoolNames };
+}
+
+/** A claim group's label with site and school ids replaced by their names. */
+function claimGroupLabel(group: ClaimGroup | undefined, names: { sites: Map<string, string>; schools: Map<string, string> }): string {
+  if (!group) return "?";
+  return group.parts
+    .map((part) => {
+      if (part.kind === "site") return part.ids.map((id) => names.sites.get(id) ?? id).join(", ");
+      if (part.kind === "school") return part.ids.map((id) => names.schools.get(id) ?? id).join(", ");
+      return part.label;
+    })
+    .join(", ");
 }
 
 function kmText(m: number): string {
@@ -605,6 +714,17 @@ export async function getClimatology(
     options.profiles === false ? Promise.resolve(new Map<string, ProfileLevelMean[]>()) : loadProfiles(viewer, query, handle),
     includeInvented ? Promise.resolve(0) : countInventedLeftOut(viewer, query, handle),
   ]);
+  // --- claims: a flight that meets both claim groups would count twice; refuse, naming how many ---
+  if (query.claim === "two-group") {
+    const both = rows.filter((row) => keyText(row.groupKey) === BOTH_GROUPS_KEY).length;
+    if (both > 0) {
+      throw new ClimatologyQueryError(
+        "overlapping-groups",
+        `${both} flight${both === 1 ? " meets" : "s meet"} both group A (${claimGroupLabel(query.groupA, names)}) and group B (${claimGroupLabel(query.groupB, names)}); a flight cannot be in both groups, so narrow one of them`,
+        "groupB",
+      );
+    }
+  }
   const metric = METRIC_INFO[query.metric];
   const band = bandOf(query);
   const excludedByReason = new Map<string, number>();
@@ -614,6 +734,8 @@ export async function getClimatology(
   const includeFlights = query.flights === "all";
   const byGroup = new Map<string, { values: number[]; siteNames: string[]; flights: ClimatologyFlight[] }>();
   let inventedContributing = 0;
+  /** Cross-table values: row group key → column key → values. */
+  const crossCells = new Map<string, Map<string, number[]>>();
 
   // Runs the sums cannot decide (bins not contiguous, or altitudes that hardly spread) are decided from their levels.
   let levelsOf = new Map<string, Array<BandLevel & { temperatureK: number }>>();
@@ -649,6 +771,14 @@ export async function getClimatology(
       continue;
     }
     if (isTrue(row.synthetic)) inventedContributing++;
+    if (query.crossBy !== "none") {
+      const crossKey = keyText(row.crossKey);
+      if (crossKey !== null) {
+        const cell = crossCells.get(key)?.get(crossKey);
+        if (cell) cell.push(value);
+        else crossCells.set(key, (crossCells.get(key) ?? new Map<string, number[]>()).set(crossKey, [value]));
+      }
+    }
     const siteName = names.sites.get(row.siteId) ?? row.siteId;
     const entry = byGroup.get(key) ?? { values: [], siteNames: [], flights: [] };
     byGroup.set(key, entry);
@@ -709,6 +839,7 @@ export async function getClimatology(
       kind: "one-sample",
       alternative: query.claimSide,
       statedValue: query.claimValue,
+      ...(query.claimTolerance === undefined ? {} : { tolerance: query.claimTolerance }),
       group: { label: "all flights", values: allValues, siteIds: groups.flatMap((g) => valuesOf.get(g.key)?.siteNames ?? []) },
       metricLabel,
       unit: metric.unit,
@@ -716,7 +847,7 @@ export async function getClimatology(
   } else if (query.claim === "two-group") {
     const a = groups.find((g) => g.key === "A");
     const b = groups.find((g) => g.key === "B");
-    for (const [group, field, label] of [[a, "groupA", query.groupA?.label], [b, "groupB", query.groupB?.label]] as const) {
+    for (const [group, field, label] of [[a, "groupA", claimGroupLabel(query.groupA, names)], [b, "groupB", claimGroupLabel(query.groupB, names)]] as const) {
       if (!group) {
         throw new ClimatologyQueryError("empty-group", `group ${field === "groupA" ? "A" : "B"} (${label ?? "?"}) has no flight with a ${metric.label} under these filters`, field);
       }
@@ -725,13 +856,15 @@ export async function getClimatology(
       claim = runClaimCheck({
         kind: "two-group",
         alternative: query.claimSide,
-        groupA: { label: query.groupA?.label ?? "A", values: valuesOf.get("A")?.values ?? [], siteIds: valuesOf.get("A")?.siteNames ?? [] },
-        groupB: { label: query.groupB?.label ?? "B", values: valuesOf.get("B")?.values ?? [], siteIds: valuesOf.get("B")?.siteNames ?? [] },
+        groupA: { label: claimGroupLabel(query.groupA, names), values: valuesOf.get("A")?.values ?? [], siteIds: valuesOf.get("A")?.siteNames ?? [] },
+        groupB: { label: claimGroupLabel(query.groupB, names), values: valuesOf.get("B")?.values ?? [], siteIds: valuesOf.get("B")?.siteNames ?? [] },
         metricLabel,
         unit: metric.unit,
       });
     }
   }
+
+  const crossTable = query.crossBy === "none" ? null : buildCrossTable(query, groups, crossCells, names);
 
   const warnings: string[] = [];
   if (inventedContributing > 0) warnings.push(`${inventedContributing} of the ${allValues.length} contributing flights ${inventedContributing === 1 ? "is" : "are"} invented (demo or test data, not measurements)`);
@@ -746,6 +879,7 @@ export async function getClimatology(
     excludedCount,
     profiles: groups.map((g) => ({ key: g.key, label: g.label, levels: profiles.get(g.key) ?? [] })),
     claim,
+    crossTable,
     invented: { rule, included: includeInvented, contributingCount: inventedContributing, leftOutCount },
     warnings,
   };

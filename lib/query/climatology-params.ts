@@ -188,6 +188,218 @@ const monthSelectionField = (label: string) =>
     }
   });
 
+
+// --- claims: claim groups (season or months, site, school, year, launch-hour or hours-after-sunrise range,
+// or a filter set joining several with ";") -------------------------------------------------------------
+
+/** One condition of a claim group. */
+export type ClaimGroupPart =
+  | MonthSelection
+  | { kind: "site"; ids: string[]; label: string }
+  | { kind: "school"; ids: string[]; label: string }
+  | { kind: "year"; years: number[]; label: string }
+  /** Local launch hour, fromH ≤ hour < toH. */
+  | { kind: "hour"; fromH: number; toH: number; label: string }
+  /** Hours after sunrise, fromH ≤ hours < toH. */
+  | { kind: "sunrise"; fromH: number; toH: number; label: string };
+
+/** A claim group: every part must hold (a filter set); `text` is the canonical form for links. */
+export interface ClaimGroup {
+  readonly parts: readonly ClaimGroupPart[];
+  readonly label: string;
+  readonly text: string;
+}
+
+/**
+ * A claim group as conditions on FlightSummary columns. This is the one definition of group
+ * membership: climatology-core renders it as SQL, flightInClaimGroup evaluates it in JS.
+ */
+export type ClaimGroupCondition =
+  | { column: "siteId" | "schoolId"; in: readonly string[] }
+  | { column: "year" | "month"; in: readonly number[] }
+  | { column: "seasonName"; equals: string }
+  | { column: "localHour" | "hoursAfterSunrise"; fromInclusive: number; toExclusive: number };
+
+export function claimGroupConditions(group: ClaimGroup): ClaimGroupCondition[] {
+  return group.parts.map((part): ClaimGroupCondition => {
+    switch (part.kind) {
+      case "season-name":
+        return { column: "seasonName", equals: part.name };
+      case "months":
+        return { column: "month", in: part.months };
+      case "site":
+        return { column: "siteId", in: part.ids };
+      case "school":
+        return { column: "schoolId", in: part.ids };
+      case "year":
+        return { column: "year", in: part.years };
+      case "hour":
+        return { column: "localHour", fromInclusive: part.fromH, toExclusive: part.toH };
+      case "sunrise":
+        return { column: "hoursAfterSunrise", fromInclusive: part.fromH, toExclusive: part.toH };
+    }
+  });
+}
+
+/** The summary columns a claim group reads. */
+export interface ClaimGroupRow {
+  siteId: string;
+  schoolId: string;
+  year: number;
+  month: number;
+  seasonName: string;
+  localHour: number | null;
+  hoursAfterSunrise: number | null;
+}
+
+/** Whether a flight's summary falls in a claim group (the JS reading of claimGroupConditions). */
+export function flightInClaimGroup(group: ClaimGroup, row: ClaimGroupRow): boolean {
+  return claimGroupConditions(group).every((c) => {
+    if ("equals" in c) return row[c.column] === c.equals;
+    if ("in" in c) return (c.in as readonly (string | number)[]).includes(row[c.column]);
+    const v = row[c.column];
+    return v !== null && v >= c.fromInclusive && v < c.toExclusive;
+  });
+}
+
+export class ClaimGroupInputError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = "ClaimGroupInputError";
+  }
+}
+
+const HOUR_RANGE = /^(-?\d+(?:\.\d+)?)\s*(?:-|–|to)\s*(-?\d+(?:\.\d+)?)$/;
+
+function parseHourRange(text: string, kind: "hour" | "sunrise"): { fromH: number; toH: number } {
+  const m = HOUR_RANGE.exec(text.trim());
+  const [min, max] = kind === "hour" ? [0, 24] : [-24, 24];
+  const example = kind === "hour" ? "hour:6-12" : "sunrise:0-3";
+  if (!m) throw new ClaimGroupInputError(`"${text}" is not an hour range; write e.g. ${example}`);
+  const fromH = Number(m[1]);
+  const toH = Number(m[2]);
+  if (!(fromH >= min && toH <= max)) throw new ClaimGroupInputError(`${kind} range ${text} must lie within ${min} to ${max} h`);
+  if (!(fromH < toH)) throw new ClaimGroupInputError(`${kind} range ${text} must run forwards (from below to)`);
+  return { fromH, toH };
+}
+
+function parseYears(text: string): number[] {
+  const years = new Set<number>();
+  for (const item of text.split(",").map((s) => s.trim()).filter((s) => s !== "")) {
+    const range = /^(\d{4})\s*[-–]\s*(\d{4})$/.exec(item);
+    if (range) {
+      const from = Number(range[1]);
+      const to = Number(range[2]);
+      if (to < from || to - from > 200) throw new ClaimGroupInputError(`year range "${item}" must run forwards (e.g. 2023-2025)`);
+      for (let y = from; y <= to; y++) years.add(y);
+    } else if (/^\d{4}$/.test(item)) years.add(Number(item));
+    else throw new ClaimGroupInputError(`"${item}" is not a year or a year range like 2023-2025`);
+  }
+  if (years.size === 0) throw new ClaimGroupInputError("year: needs a year, e.g. year:2024");
+  return [...years].sort((a, b) => a - b);
+}
+
+function parseIds(text: string, kind: "site" | "school"): string[] {
+  const ids = text.split(",").map((s) => s.trim()).filter((s) => s !== "");
+  if (ids.length === 0) throw new ClaimGroupInputError(`${kind}: needs an id, e.g. ${kind}:<id>`);
+  for (const id of ids) if (!/^[A-Za-z0-9_-]{1,64}$/.test(id)) throw new ClaimGroupInputError(`${kind} id "${id}": ids are letters, digits, - and _ only`);
+  return [...new Set(ids)];
+}
+
+function hoursText(h: number): string {
+  return h > 0 ? `+${h}` : h < 0 ? `−${-h}` : "0";
+}
+
+function parseClaimGroupPart(text: string): { part: ClaimGroupPart; text: string } {
+  const m = /^(site|school|year|hour|sunrise|season|months)\s*:\s*(.*)$/i.exec(text.trim());
+  if (!m) {
+    const part = parseMonthSelection(text);
+    return { part, text: part.kind === "season-name" ? part.name : text.trim() };
+  }
+  const kind = (m[1] as string).toLowerCase();
+  const rest = (m[2] as string).trim();
+  switch (kind) {
+    case "site":
+    case "school": {
+      const ids = parseIds(rest, kind);
+      return { part: { kind, ids, label: `${kind} ${ids.join(", ")}` }, text: `${kind}:${ids.join(",")}` };
+    }
+    case "year": {
+      const years = parseYears(rest);
+      return { part: { kind: "year", years, label: years.length === 1 ? String(years[0]) : `years ${rest}` }, text: `year:${rest}` };
+    }
+    case "hour": {
+      const r = parseHourRange(rest, "hour");
+      return { part: { kind: "hour", ...r, label: `launched ${r.fromH}–${r.toH} h local` }, text: `hour:${r.fromH}-${r.toH}` };
+    }
+    case "sunrise": {
+      const r = parseHourRange(rest, "sunrise");
+      return { part: { kind: "sunrise", ...r, label: `${hoursText(r.fromH)} to ${hoursText(r.toH)} h after sunrise` }, text: `sunrise:${r.fromH}-${r.toH}` };
+    }
+    default: {
+      const part = parseMonthSelection(rest);
+      return { part, text: part.kind === "season-name" ? part.name : rest };
+    }
+  }
+}
+
+/**
+ * Reads a claim group: "summer", "JJA", "Oct-Nov" (as before), "site:<id>", "school:<id>",
+ * "year:2024", "hour:6-12" (local launch hour, 6 ≤ h < 12), "sunrise:0-3", or a filter set of
+ * several joined by ";" ("site:abc; summer; hour:6-12"), all of which must hold.
+ * @throws ClaimGroupInputError or SeasonInputError for text that is none of those.
+ */
+export function parseClaimGroup(text: string): ClaimGroup {
+  const pieces = text.split(";").map((s) => s.trim()).filter((s) => s !== "");
+  if (pieces.length === 0) throw new ClaimGroupInputError("the group is empty");
+  if (pieces.length > 8) throw new ClaimGroupInputError("a filter set takes at most 8 conditions");
+  const parsed = pieces.map(parseClaimGroupPart);
+  return { parts: parsed.map((p) => p.part), label: parsed.map((p) => p.part.label).join(", "), text: parsed.map((p) => p.text).join("; ") };
+}
+
+const claimGroupField = (label: string) =>
+  z.preprocess(blankToUndefined, z.string().max(300).optional()).transform((text, ctx): ClaimGroup | undefined => {
+    if (text === undefined) return undefined;
+    try {
+      return parseClaimGroup(text);
+    } catch (error) {
+      const reason = error instanceof SeasonInputError || error instanceof ClaimGroupInputError ? error.message : String(error);
+      ctx.addIssue({
+        code: "custom",
+        message: `${label}: ${reason}. Write a season (summer, JJA), months (Oct-Nov), site:<id>, school:<id>, year:2024, hour:6-12, sunrise:0-3, or several joined by ";"`,
+      });
+      return z.NEVER;
+    }
+  });
+
+/** Parts of the same kind in both groups that certainly overlap, in words; null when none is known to. */
+function claimGroupsOverlapStatically(a: ClaimGroup, b: ClaimGroup): string | null {
+  // Only single-condition groups of one kind can be judged without the data; the rest is checked on the flights.
+  if (a.parts.length !== 1 || b.parts.length !== 1) return null;
+  const pa = a.parts[0] as ClaimGroupPart;
+  const pb = b.parts[0] as ClaimGroupPart;
+  const isMonths = (p: ClaimGroupPart): p is MonthSelection => p.kind === "season-name" || p.kind === "months";
+  if (isMonths(pa) && isMonths(pb)) {
+    const shared = sharedMonths(pa, pb);
+    if (shared.northern.length === 0 && shared.southern.length === 0) return null;
+    return shared.northern.length > 0 ? `${describeMonths(shared.northern)} (northern sites)` : `${describeMonths(shared.southern)} (southern sites)`;
+  }
+  if ((pa.kind === "site" && pb.kind === "site") || (pa.kind === "school" && pb.kind === "school")) {
+    const shared = pa.ids.filter((id) => (pb as { ids: string[] }).ids.includes(id));
+    return shared.length ? `${pa.kind} ${shared.join(", ")}` : null;
+  }
+  if (pa.kind === "year" && pb.kind === "year") {
+    const shared = pa.years.filter((y) => pb.years.includes(y));
+    return shared.length ? `year ${shared.join(", ")}` : null;
+  }
+  if ((pa.kind === "hour" && pb.kind === "hour") || (pa.kind === "sunrise" && pb.kind === "sunrise")) {
+    const qb = pb as { fromH: number; toH: number };
+    return pa.fromH < qb.toH && qb.fromH < pa.toH ? `hours ${Math.max(pa.fromH, qb.fromH)}–${Math.min(pa.toH, qb.toH)}` : null;
+  }
+  return null;
+}
+// --- end of claims: claim groups ---
+
 const enumWithDefault = <T extends readonly [string, ...string[]]>(values: T, fallback: T[number], label: string) =>
   z.preprocess(blankToUndefined, z.enum(values, { error: `${label} must be one of: ${values.join(", ")}` }).default(fallback as never));
 
@@ -223,6 +435,8 @@ const climatologyBaseSchema = z.object({
    */
   bandReference: enumWithDefault(HEIGHT_REFERENCES, "msl", "bandReference"),
   groupBy: enumWithDefault(CLIMATOLOGY_GROUPINGS, "season", "groupBy"),
+  // --- claims: a second grouping for a cross-table of n, mean and 95 % CI (groupBy × crossBy) ---
+  crossBy: enumWithDefault(CLIMATOLOGY_GROUPINGS, "none", "crossBy"),
   binHours: z.preprocess(
     blankToUndefined,
     z.coerce
@@ -236,8 +450,10 @@ const climatologyBaseSchema = z.object({
   claim: enumWithDefault(CLAIM_KINDS, "none", "claim"),
   claimValue: optionalNumber("claimValue", -1e6, 1e6),
   claimSide: enumWithDefault(CLAIM_SIDES, "two-sided", "claimSide"),
-  groupA: monthSelectionField("groupA"),
-  groupB: monthSelectionField("groupB"),
+  // --- claims: tolerance of an "equals" claim (6.5 ± 0.3), tested as equivalence ---
+  claimTolerance: optionalNumber("claimTolerance (± tolerance of the stated value)", 0, 1e6),
+  groupA: claimGroupField("groupA"),
+  groupB: claimGroupField("groupB"),
 });
 
 function checkRange(
@@ -283,16 +499,27 @@ export const climatologyQuerySchema = climatologyBaseSchema.superRefine((q, ctx)
   } else if (q.phase === "descent") {
     ctx.addIssue({ code: "custom", path: ["phase"], message: "only the band lapse rate can use the descent; the other metrics come from the stored ascent summary" });
   }
+  // --- claims: the cross-table needs a second grouping different from the first ---
+  if (q.crossBy !== "none" && q.crossBy === q.groupBy && q.claim !== "two-group") {
+    ctx.addIssue({ code: "custom", path: ["crossBy"], message: `crossBy (${q.crossBy}) must differ from groupBy; choose a second grouping` });
+  }
   if (q.claim === "one-sample" && q.claimValue === undefined) {
     ctx.addIssue({ code: "custom", path: ["claimValue"], message: "a one-sample claim needs the stated value (e.g. 6.5 for 6.5 K/km)" });
+  }
+  // --- claims: a tolerance belongs to a one-sample "equals" claim and must be above zero ---
+  if (q.claimTolerance !== undefined) {
+    if (q.claim !== "one-sample" || q.claimSide !== "two-sided") {
+      ctx.addIssue({ code: "custom", path: ["claimTolerance"], message: "a tolerance belongs to an \"equals\" claim (one-sample, two-sided)" });
+    } else if (!(q.claimTolerance > 0)) {
+      ctx.addIssue({ code: "custom", path: ["claimTolerance"], message: "the tolerance must be above 0 (e.g. 0.3 for 6.5 ± 0.3 K/km)" });
+    }
   }
   if (q.claim === "two-group") {
     if (!q.groupA) ctx.addIssue({ code: "custom", path: ["groupA"], message: "a two-group claim needs group A (e.g. summer or JJA)" });
     if (!q.groupB) ctx.addIssue({ code: "custom", path: ["groupB"], message: "a two-group claim needs group B (e.g. Oct-Nov)" });
     if (q.groupA && q.groupB) {
-      const shared = sharedMonths(q.groupA, q.groupB);
-      if (shared.northern.length > 0 || shared.southern.length > 0) {
-        const where = shared.northern.length > 0 ? `${describeMonths(shared.northern)} (northern sites)` : `${describeMonths(shared.southern)} (southern sites)`;
+      const where = claimGroupsOverlapStatically(q.groupA, q.groupB);
+      if (where !== null) {
         ctx.addIssue({ code: "custom", path: ["groupB"], message: `groups A (${q.groupA.label}) and B (${q.groupB.label}) share ${where}; a flight cannot be in both groups` });
       }
     }
@@ -377,6 +604,7 @@ export function climatologySearchParams(query: ClimatologyQuery, raw: Record<str
     set("bandReference", query.bandReference);
   }
   set("groupBy", query.groupBy);
+  if (query.crossBy !== "none") set("crossBy", query.crossBy);
   if (query.groupBy === "launch-hour" || query.groupBy === "hours-after-sunrise") set("binHours", query.binHours);
   if (query.chartX !== "day-of-year") set("chartX", query.chartX);
   if (query.flights !== "all") set("flights", query.flights);
@@ -384,9 +612,10 @@ export function climatologySearchParams(query: ClimatologyQuery, raw: Record<str
     set("claim", query.claim);
     set("claimSide", query.claimSide);
     if (query.claim === "one-sample") set("claimValue", query.claimValue);
+    if (query.claim === "one-sample" && query.claimTolerance !== undefined) set("claimTolerance", query.claimTolerance);
     if (query.claim === "two-group") {
-      set("groupA", selectionText(query.groupA, raw.groupA?.trim() || undefined));
-      set("groupB", selectionText(query.groupB, raw.groupB?.trim() || undefined));
+      set("groupA", raw.groupA?.trim() || query.groupA?.text);
+      set("groupB", raw.groupB?.trim() || query.groupB?.text);
     }
   }
   return p;

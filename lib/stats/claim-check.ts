@@ -7,7 +7,7 @@ import { describe } from "./describe";
 import { hedgesG } from "./effect-size";
 import { mannWhitneyU } from "./mann-whitney";
 import { minimumDetectableDifference } from "./power";
-import { oneSampleTTest, welchTTest } from "./t-tests";
+import { type EquivalenceTestResult, equivalenceTest, oneSampleTTest, welchTTest } from "./t-tests";
 import { type Alternative, type Interval, StatsInputError, assertAlternative, assertLevel, finiteValues } from "./types";
 
 /** Fewer flights than this in a group earns a small-sample caveat [P: rule of thumb for t tests]. */
@@ -30,6 +30,11 @@ export type ClaimCheckInput =
       /** "two-sided": the claim is mean = statedValue; "greater"/"less": mean > or < statedValue. */
       readonly alternative: Alternative;
       readonly statedValue: number;
+      /**
+       * Optional tolerance δ (> 0, same unit) of a two-sided "equals" claim ("6.5 ± 0.3 K/km"): the
+       * claim is then tested as equivalence, mean within statedValue ± δ, by two one-sided tests.
+       */
+      readonly tolerance?: number;
       readonly group: ClaimGroupInput;
       readonly metricLabel: string;
       readonly unit: string;
@@ -58,7 +63,11 @@ export interface ClaimGroupSummary {
   readonly largestSite: { siteId: string; share: number } | null;
 }
 
-export type ClaimOutcome = "supported" | "not-shown" | "consistent" | "contradicted" | "undetermined";
+/**
+ * "equivalent": an "equals ± tolerance" claim passed both one-sided tests; "inconclusive": such a
+ * claim showed neither a difference nor equivalence.
+ */
+export type ClaimOutcome = "supported" | "not-shown" | "consistent" | "contradicted" | "equivalent" | "inconclusive" | "undetermined";
 
 export type ClaimCaveatCode = "small-n" | "skewed" | "one-site" | "tests-disagree" | "opposite-direction" | "few-values";
 
@@ -75,6 +84,12 @@ export interface ClaimCheckResult {
   readonly metricLabel: string;
   readonly unit: string;
   readonly statedValue: number | null;
+  /** Tolerance δ of an equivalence claim, null otherwise. */
+  readonly tolerance: number | null;
+  /** Two one-sided tests against statedValue ± tolerance; null without a tolerance or without a usable t test. */
+  readonly equivalence: EquivalenceTestResult | null;
+  /** Decimals every number of the claim's wording and verdict is shown with (claimDigits). */
+  readonly digits: number;
   readonly groups: readonly ClaimGroupSummary[];
   /** Mean (one-sample) or mean A − mean B (two-group), in `unit`. */
   readonly estimate: number | null;
@@ -155,17 +170,39 @@ export function formatP(p: number | null): string {
   return `p = ${p < 0.01 ? p.toFixed(4) : p.toFixed(3)}`;
 }
 
-function num(value: number | null, digits = 2): string {
+/** Fewest and most decimals a claim's numbers are shown with. */
+const CLAIM_MIN_DIGITS = 2;
+const CLAIM_MAX_DIGITS = 6;
+
+/**
+ * Decimals for a claim's wording and verdict alike: at least 2, and enough to show each stated
+ * number (value, tolerance) exactly as given, up to 6. "6.5" → 2, "6.125" → 3.
+ */
+export function claimDigits(stated: readonly (number | null | undefined)[]): number {
+  let digits = CLAIM_MIN_DIGITS;
+  for (const value of stated) {
+    if (value === null || value === undefined || !Number.isFinite(value)) continue;
+    let d = 0;
+    while (d < CLAIM_MAX_DIGITS && Number(value.toFixed(d)) !== value) d += 1;
+    digits = Math.max(digits, d);
+  }
+  return digits;
+}
+
+/** The one number format of claim wording and verdict: fixed `digits` decimals, no "-0.00". */
+export function formatClaimNumber(value: number | null, digits: number): string {
   if (value === null) return "—";
   const text = value.toFixed(digits);
   return /^-0(\.0+)?$/.test(text) ? text.slice(1) : text;
 }
 
-function intervalText(ci: Interval, unit: string): string {
+function intervalText(ci: Interval, unit: string, digits: number): string {
+  const num = (v: number | null) => formatClaimNumber(v, digits);
+  const level = `${Math.round(ci.level * 100)} %`;
   if (ci.low === null && ci.high === null) return "no interval";
-  if (ci.low === null) return `95 % upper bound ${num(ci.high)} ${unit}`;
-  if (ci.high === null) return `95 % lower bound ${num(ci.low)} ${unit}`;
-  return `95 % CI ${num(ci.low)} to ${num(ci.high)} ${unit}`;
+  if (ci.low === null) return `${level} upper bound ${num(ci.high)} ${unit}`;
+  if (ci.high === null) return `${level} lower bound ${num(ci.low)} ${unit}`;
+  return `${level} CI ${num(ci.low)} to ${num(ci.high)} ${unit}`;
 }
 
 /** Bias-corrected standardised difference of one mean from a stated value: J·(mean − value)/SD, J = 1 − 3/(4·df − 1), df = n − 1 (Hedges & Olkin 1985). */
@@ -186,7 +223,8 @@ function safeMdd(sd: number | null, nA: number, nB: number | undefined, alpha: n
   }
 }
 
-function groupCaveats(groups: readonly ClaimGroupSummary[], kind: ClaimCheckInput["kind"]): ClaimCaveat[] {
+function groupCaveats(groups: readonly ClaimGroupSummary[], kind: ClaimCheckInput["kind"], digits: number): ClaimCaveat[] {
+  const num = (v: number | null) => formatClaimNumber(v, digits);
   const caveats: ClaimCaveat[] = [];
   const name = (g: ClaimGroupSummary) => (kind === "one-sample" ? "the sample" : `group ${g.label}`);
   for (const g of groups) {
@@ -223,14 +261,23 @@ export function runClaimCheck(input: ClaimCheckInput): ClaimCheckResult {
 
   if (input.kind === "one-sample") {
     if (!Number.isFinite(input.statedValue)) throw new StatsInputError(`statedValue must be finite, got ${input.statedValue}`);
+    const tolerance = input.tolerance ?? null;
+    if (tolerance !== null && !(tolerance > 0 && Number.isFinite(tolerance))) throw new StatsInputError(`tolerance must be a finite number > 0, got ${tolerance}`);
+    if (tolerance !== null && alternative !== "two-sided") throw new StatsInputError("a tolerance belongs to a two-sided \"equals\" claim");
+    const digits = claimDigits([input.statedValue, tolerance]);
+    const num = (value: number | null) => formatClaimNumber(value, digits);
     const group = summarise(input.group);
     const test = oneSampleTTest(input.group.values, input.statedValue, alternative);
     warnings.push(...test.warnings);
-    const caveats = groupCaveats([group], "one-sample");
+    const caveats = groupCaveats([group], "one-sample", digits);
     const mdd = safeMdd(group.sd, group.n, undefined, alpha, alternative);
     const v = input.statedValue;
     const est = test.estimate;
-    const ci = intervalText(test.ci95, unit);
+    const ci = intervalText(test.ci95, unit, digits);
+    const equivalence =
+      tolerance !== null && est !== null && test.standardError !== null && test.df !== null
+        ? equivalenceTest(est, input.statedValue, tolerance, test.standardError, test.df, alpha)
+        : null;
     let outcome: ClaimOutcome;
     let verdict: string;
     const mddText = mdd === null ? "" : ` With ${group.n} flights, only differences of about ${num(mdd)} ${unit} or more would be detected reliably (80 % power).`;
@@ -238,6 +285,25 @@ export function runClaimCheck(input: ClaimCheckInput): ClaimCheckResult {
       outcome = "undetermined";
       verdict = `The claim cannot be tested: ${group.n < 2 ? `only ${group.n} flight${group.n === 1 ? "" : "s"} ha${group.n === 1 ? "s" : "ve"} a value` : "the values have no spread"}.`;
       caveats.push({ code: "few-values", message: "A t test needs at least 2 flights with different values." });
+    } else if (tolerance !== null && equivalence) {
+      const range = `${num(v - tolerance)} to ${num(v + tolerance)} ${unit}`;
+      const tost = `two one-sided tests ${formatP(equivalence.p)}, ${intervalText(equivalence.interval, unit, digits)}`;
+      const claimText = `${num(v)} ± ${num(tolerance)} ${unit}`;
+      if (equivalence.equivalent) {
+        outcome = "equivalent";
+        const clearButSmall =
+          test.p < alpha ? ` The mean does differ from ${num(v)} ${unit} (${formatP(test.p)}), but by less than the stated tolerance.` : "";
+        verdict = `The data support the claim of ${claimText}: the mean ${metricLabel} is ${num(est)} ${unit} and lies within ${range} (${tost}, n = ${group.n}).${clearButSmall}`;
+      } else if (test.p < alpha) {
+        outcome = "contradicted";
+        const size = equivalence.beyondTolerance
+          ? `the difference is also larger than the stated tolerance of ${num(tolerance)} ${unit} (the ${intervalText(equivalence.interval, unit, digits)} lies outside ${range})`
+          : `the data cannot tell whether the difference is larger than the stated tolerance of ${num(tolerance)} ${unit} (the ${intervalText(equivalence.interval, unit, digits)} overlaps ${range})`;
+        verdict = `The data contradict the claim of ${claimText}: the mean ${metricLabel} is ${num(est)} ${unit} (${ci}), which differs from ${num(v)} ${unit} (${formatP(test.p)}, n = ${group.n}); ${size}.`;
+      } else {
+        outcome = "inconclusive";
+        verdict = `The data neither show a difference nor show the claim of ${claimText}: the mean ${metricLabel} is ${num(est)} ${unit}; there is no evidence against ${num(v)} ${unit} (${formatP(test.p)}), but the ${intervalText(equivalence.interval, unit, digits)} reaches beyond ${range} (${tost}, n = ${group.n}). No evidence against a value is not evidence for it.${mddText}`;
+      }
     } else if (alternative === "two-sided") {
       if (test.p < alpha) {
         outcome = "contradicted";
@@ -267,6 +333,9 @@ export function runClaimCheck(input: ClaimCheckInput): ClaimCheckResult {
       metricLabel,
       unit,
       statedValue: v,
+      tolerance,
+      equivalence,
+      digits,
       groups: [group],
       estimate: est,
       ci95: test.ci95,
@@ -285,11 +354,13 @@ export function runClaimCheck(input: ClaimCheckInput): ClaimCheckResult {
     };
   }
 
+  const digits = claimDigits([]);
+  const num = (value: number | null) => formatClaimNumber(value, digits);
   const a = summarise(input.groupA);
   const b = summarise(input.groupB);
   const welch = welchTTest(input.groupA.values, input.groupB.values, alternative);
   warnings.push(...welch.warnings);
-  const caveats = groupCaveats([a, b], "two-group");
+  const caveats = groupCaveats([a, b], "two-group", digits);
   const canRank = a.n >= 1 && b.n >= 1;
   const rank = canRank ? mannWhitneyU(input.groupA.values, input.groupB.values, alternative) : null;
   if (rank) warnings.push(...rank.warnings.map((w) => `Mann–Whitney: ${w}`));
@@ -298,7 +369,7 @@ export function runClaimCheck(input: ClaimCheckInput): ClaimCheckResult {
     a.sd !== null && b.sd !== null && a.n + b.n > 2 ? Math.sqrt(((a.n - 1) * a.sd ** 2 + (b.n - 1) * b.sd ** 2) / (a.n + b.n - 2)) : null;
   const mdd = safeMdd(pooledSd, a.n, b.n, alpha, alternative);
   const est = welch.meanDifference;
-  const ci = intervalText(welch.ci95, unit);
+  const ci = intervalText(welch.ci95, unit, digits);
   const labelA = input.groupA.label;
   const labelB = input.groupB.label;
   const means = `${labelA} mean ${num(a.mean)} ${unit} (n = ${a.n}), ${labelB} mean ${num(b.mean)} ${unit} (n = ${b.n})`;
@@ -338,6 +409,9 @@ export function runClaimCheck(input: ClaimCheckInput): ClaimCheckResult {
     metricLabel,
     unit,
     statedValue: null,
+    tolerance: null,
+    equivalence: null,
+    digits,
     groups: [a, b],
     estimate: est,
     ci95: welch.ci95,

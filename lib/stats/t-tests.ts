@@ -9,6 +9,7 @@ import {
   type Interval,
   type SampleSummary,
   assertAlternative,
+  StatsInputError,
   assertSummary,
   finiteOrNull,
 } from "./types";
@@ -264,4 +265,73 @@ export function pooledTTest(
   alternative: Alternative = "two-sided",
 ): TwoSampleTTestResult {
   return twoSampleFromValues("pooled", a, b, alternative);
+}
+
+export interface EquivalenceTestResult {
+  /** Lower and upper equivalence bounds on the estimate's scale (nullValue ∓ tolerance). */
+  readonly lowerBound: number;
+  readonly upperBound: number;
+  /** t and one-sided p of H0: true value ≤ lowerBound (p = P(T ≥ tLower)). */
+  readonly tLower: number;
+  readonly pLower: number;
+  /** t and one-sided p of H0: true value ≥ upperBound (p = P(T ≤ tUpper)). */
+  readonly tUpper: number;
+  readonly pUpper: number;
+  /** The larger of the two one-sided p values: the TOST p value. */
+  readonly p: number;
+  /** True when both one-sided tests reject at `alpha`, i.e. the (1 − 2α) interval lies inside the bounds. */
+  readonly equivalent: boolean;
+  /** The (1 − 2α) two-sided interval of the estimate that matches the TOST decision. */
+  readonly interval: Interval;
+  /**
+   * True when the (1 − 2α) interval lies wholly outside the bounds on one side: the data show the
+   * true value differs from nullValue by more than the tolerance (the two one-sided tests turned around).
+   */
+  readonly beyondTolerance: boolean;
+  readonly alpha: number;
+}
+
+/**
+ * Two one-sided tests (TOST) of equivalence for an estimate with standard error `se` and `df`
+ * degrees of freedom (Schuirmann 1987; Lakens 2017): H0 is |true − nullValue| ≥ tolerance,
+ * rejected at `alpha` when both t_lower = (estimate − (nullValue − tolerance))/se exceeds
+ * t(1−α, df) and t_upper = (estimate − (nullValue + tolerance))/se falls below −t(1−α, df);
+ * equivalently, when the (1 − 2α) interval lies inside nullValue ± tolerance. Null when se or df
+ * is not usable.
+ */
+export function equivalenceTest(
+  estimate: number,
+  nullValue: number,
+  tolerance: number,
+  se: number,
+  df: number,
+  alpha = 0.05,
+): EquivalenceTestResult | null {
+  if (!(tolerance > 0) || !Number.isFinite(tolerance)) throw new StatsInputError(`tolerance must be a finite number > 0, got ${tolerance}`);
+  if (!(alpha > 0 && alpha < 0.5)) throw new StatsInputError(`alpha must be in (0, 0.5) for two one-sided tests, got ${alpha}`);
+  if (!Number.isFinite(estimate) || !Number.isFinite(nullValue) || !(se > 0) || !Number.isFinite(se) || !(df > 0)) return null;
+  const lowerBound = nullValue - tolerance;
+  const upperBound = nullValue + tolerance;
+  const tLower = (estimate - lowerBound) / se;
+  const tUpper = (estimate - upperBound) / se;
+  const pLower = tTestPValue(tLower, df, "greater");
+  const pUpper = tTestPValue(tUpper, df, "less");
+  const p = Math.max(pLower, pUpper);
+  const margin = tQuantile(1 - alpha, df) * se;
+  const low = estimate - margin;
+  const high = estimate + margin;
+  if (![tLower, tUpper, p, low, high].every(Number.isFinite)) return null;
+  return {
+    lowerBound,
+    upperBound,
+    tLower,
+    pLower,
+    tUpper,
+    pUpper,
+    p,
+    equivalent: pLower < alpha && pUpper < alpha,
+    interval: { low, high, level: 1 - 2 * alpha },
+    beyondTolerance: low > upperBound || high < lowerBound,
+    alpha,
+  };
 }

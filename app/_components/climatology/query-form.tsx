@@ -44,6 +44,8 @@ const GROUPING_CHOICES: Record<ClimatologyGrouping, string> = {
 
 const SEASON_HINT = "A season (summer, winter: at each site's hemisphere), a code (JJA) or months (Oct-Nov, 10-11, Dec-Feb).";
 
+const CLAIM_GROUP_HINT = `${SEASON_HINT} Or site:<id>, school:<id>, year:2024, hour:6-12 (local launch hour), sunrise:0-3 (hours after sunrise), or several joined by ";" (site:<id>; summer).`;
+
 function FieldErrors({ errors, id }: { errors: string[] | undefined; id: string }) {
   if (!errors || errors.length === 0) return null;
   return (
@@ -186,6 +188,13 @@ export function ClimatologyQueryForm({
             </select>
           </div>
           <div className="field">
+            <label htmlFor="c-cross">Cross-table by</label>
+            <select id="c-cross" name="crossBy" defaultValue={values.crossBy ?? "none"} aria-describedby={errors.crossBy ? "c-cross-error" : undefined}>
+              {CLIMATOLOGY_GROUPINGS.map((g) => <option key={g} value={g}>{g === "none" ? "No cross-table" : GROUPING_CHOICES[g]}</option>)}
+            </select>
+            <FieldErrors errors={errors.crossBy} id="c-cross-error" />
+          </div>
+          <div className="field">
             <label htmlFor="c-bin">Hour bin width</label>
             <select id="c-bin" name="binHours" defaultValue={values.binHours ?? "3"}>
               {HOUR_BIN_WIDTHS.map((w) => <option key={w} value={String(w)}>{w} h</option>)}
@@ -217,7 +226,8 @@ export function ClimatologyQueryForm({
             </select>
           </div>
           <TextField name="claimValue" label="Stated value (in the metric's unit)" type="number" step="any" values={values} errors={errors} placeholder="6.5" />
-          <TextField name="groupA" label="Group A" values={values} errors={errors} list="c-season-suggestions" placeholder="summer" hint={SEASON_HINT} />
+          <TextField name="claimTolerance" label="Tolerance ± (optional; tests “equals” as equivalence)" type="number" step="any" values={values} errors={errors} placeholder="0.3" />
+          <TextField name="groupA" label="Group A" values={values} errors={errors} list="c-season-suggestions" placeholder="summer" hint={CLAIM_GROUP_HINT} />
           <TextField name="groupB" label="Group B" values={values} errors={errors} list="c-season-suggestions" placeholder="Oct-Nov" />
         </div>
       </fieldset>

@@ -28,6 +28,43 @@ function StatCells({ stats, digits }: { stats: GroupStatistics; digits: number }
 }
 
 /** n, mean, SD, SEM, median, IQR, min, max and 95 % CI per group, plus all groups together. */
+/** groupBy × crossBy: each cell gives n, mean and the 95 % CI of the mean; empty cells show a dash. */
+export function CrossTableView({ result }: { result: ClimatologyResult }) {
+  const table = result.crossTable;
+  if (!table) return null;
+  const unit = result.metric.unit;
+  const digits = digitsForUnit(unit);
+  const cellOf = new Map(table.cells.map((c) => [`${c.rowKey}\u0000${c.columnKey}`, c]));
+  return (
+    <div className="table-wrap" role="region" aria-label="Cross-table" tabIndex={0}>
+      <table>
+        <caption>{result.metric.label.charAt(0).toUpperCase() + result.metric.label.slice(1)} per group and {table.by}: flights (n), mean and t-based 95 % CI of the mean, in {unit}.</caption>
+        <thead>
+          <tr>
+            <th scope="col">Group</th>
+            {table.columns.map((c) => <th key={c.key} scope="col" className="num">{c.label}</th>)}
+          </tr>
+        </thead>
+        <tbody>
+          {table.rows.map((r) => (
+            <tr key={r.key}>
+              <th scope="row">{r.label}</th>
+              {table.columns.map((c) => {
+                const cell = cellOf.get(`${r.key}\u0000${c.key}`);
+                return (
+                  <td key={c.key} className="num">
+                    {cell ? <>n = {cell.n}, {formatNumber(cell.mean, digits)}<br /><span className="muted small">{cell.ci95Low === null ? "no CI" : `${formatNumber(cell.ci95Low, digits)} to ${formatNumber(cell.ci95High, digits)}`}</span></> : "—"}
+                  </td>
+                );
+              })}
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </div>
+  );
+}
+
 export function GroupStatisticsTable({ result }: { result: ClimatologyResult }) {
   const unit = result.metric.unit;
   const digits = digitsForUnit(unit);
@@ -113,6 +150,8 @@ const OUTCOME_WORDS: Record<ClaimCheckResult["outcome"], string> = {
   "not-shown": "Not shown",
   consistent: "Consistent with the data",
   contradicted: "Contradicted",
+  equivalent: "Within the stated tolerance",
+  inconclusive: "Neither shown",
   undetermined: "Cannot be tested",
 };
 
@@ -131,8 +170,13 @@ function intervalText(low: number | null, high: number | null, digits: number, u
 /** The claim check: verdict first, then the numbers behind it and the caveats. */
 export function ClaimResult({ claim, statement }: { claim: ClaimCheckResult; statement: string }) {
   const unit = claim.unit;
-  const digits = Math.max(2, digitsForUnit(unit));
-  const outcomeClass = claim.outcome === "supported" || claim.outcome === "consistent" ? "notice-ok" : claim.outcome === "undetermined" ? "notice-warn" : "notice-error";
+  const digits = claim.digits;
+  const outcomeClass =
+    claim.outcome === "supported" || claim.outcome === "consistent" || claim.outcome === "equivalent"
+      ? "notice-ok"
+      : claim.outcome === "undetermined" || claim.outcome === "inconclusive"
+        ? "notice-warn"
+        : "notice-error";
   return (
     <section aria-labelledby="claim-heading" className="claim-result">
       <h2 id="claim-heading">Claim check</h2>
@@ -155,6 +199,12 @@ export function ClaimResult({ claim, statement }: { claim: ClaimCheckResult; sta
         <div><dt>95 % confidence interval</dt><dd>{intervalText(claim.ci95.low, claim.ci95.high, digits, unit)}</dd></div>
         <div><dt>t statistic</dt><dd>{formatNumber(claim.t, 3)} (df {formatNumber(claim.df, 1)})</dd></div>
         <div><dt>p-value</dt><dd>{pText(claim.p)}</dd></div>
+        {claim.equivalence && (
+          <div>
+            <dt>Equivalence (two one-sided tests, ±{formatNumber(claim.tolerance, digits)} {unit})</dt>
+            <dd>p {pText(claim.equivalence.p)}, {Math.round(claim.equivalence.interval.level * 100)} % CI {intervalText(claim.equivalence.interval.low, claim.equivalence.interval.high, digits, unit)}</dd>
+          </div>
+        )}
         {claim.rankCheck && <div><dt>Mann–Whitney check</dt><dd>U = {formatNumber(claim.rankCheck.u, 1)}, p {pText(claim.rankCheck.p)} ({claim.rankCheck.method})</dd></div>}
         <div><dt>Effect size (Hedges&apos; g)</dt><dd>{formatNumber(claim.hedgesG, 2)}</dd></div>
         <div><dt>Minimum detectable difference (80 % power, α = {claim.alpha})</dt><dd>{formatNumber(claim.minimumDetectableDifference, digits)} {unit}</dd></div>

@@ -40,6 +40,7 @@ export const GET = withErrors(async (request: Request) => {
       flights: group.flights.map((flight) => ({ ...flight, url: absoluteUrl(request, `/flights/${flight.flightId}`) })),
     })),
     claim: result.claim,
+    crossTable: result.crossTable,
     profiles: result.profiles,
     warnings: result.warnings,
   });
