@@ -206,6 +206,10 @@ interface PageFigures {
   domNodes: number;
   firstStatisticsMs: number;
   networkIdleMs: number;
+  /** Where the nodes and bytes go: chart point links, flight-table rows, bytes of inline scripts (the RSC payload). */
+  pointLinks: number;
+  flightRows: number;
+  inlineScriptBytes: number;
 }
 
 async function measurePage(base: string, handle: DbHandle, record: Record<string, string>): Promise<PageFigures[]> {
@@ -229,9 +233,14 @@ async function measurePage(base: string, handle: DbHandle, record: Record<string
       const firstStatisticsMs = performance.now() - t0;
       await page.waitForLoadState("networkidle", { timeout: 180_000 });
       const networkIdleMs = performance.now() - t0;
-      const domNodes = await page.evaluate(() => document.getElementsByTagName("*").length);
+      const { domNodes, pointLinks, flightRows, inlineScriptBytes } = await page.evaluate(() => ({
+        domNodes: document.getElementsByTagName("*").length,
+        pointLinks: document.querySelectorAll("a.chart-point-link").length,
+        flightRows: document.querySelectorAll("details.group-flights tbody tr").length,
+        inlineScriptBytes: [...document.querySelectorAll("script:not([src])")].reduce((sum, el) => sum + (el.textContent?.length ?? 0), 0),
+      }));
       await page.close();
-      if (i > 0) out.push({ htmlBytes, domNodes, firstStatisticsMs, networkIdleMs }); // the first run warms the server's code
+      if (i > 0) out.push({ htmlBytes, domNodes, firstStatisticsMs, networkIdleMs, pointLinks, flightRows, inlineScriptBytes }); // the first run warms the server's code
     }
     return out;
   } finally {
@@ -320,13 +329,14 @@ async function benchEngine(engine: DbHandle["engine"], handle: DbHandle): Promis
     for (const record of PAGE_QUERIES) {
       const runs = await measurePage(server.base, handle, record);
       const label = `${record.metric}/${record.groupBy}`;
+      const last = runs[runs.length - 1]!;
       const html = Math.max(...runs.map((r) => r.htmlBytes));
       const dom = Math.max(...runs.map((r) => r.domNodes));
       const first = percentile(runs.map((r) => r.firstStatisticsMs).sort((a, b) => a - b), 0.5);
       const idle = percentile(runs.map((r) => r.networkIdleMs).sort((a, b) => a - b), 0.5);
       results.push(
-        { name: `scale ${engine}: page ${label}: HTML`, value: html / 1024, unit: "KB", note: `target ≤ 300 KB; ${html <= 300 * 1024 ? "met" : "NOT met"}` },
-        { name: `scale ${engine}: page ${label}: DOM nodes`, value: dom, unit: "nodes", note: `target ≤ 15,000; ${dom <= 15_000 ? "met" : "NOT met"}` },
+        { name: `scale ${engine}: page ${label}: HTML`, value: html / 1024, unit: "KB", note: `target ≤ 300 KB; ${html <= 300 * 1024 ? "met" : "NOT met"}; inline scripts ${(last.inlineScriptBytes / 1024).toFixed(0)} KB` },
+        { name: `scale ${engine}: page ${label}: DOM nodes`, value: dom, unit: "nodes", note: `target ≤ 15,000; ${dom <= 15_000 ? "met" : "NOT met"}; ${last.pointLinks} chart point links, ${last.flightRows} flight-table rows` },
         { name: `scale ${engine}: page ${label}: statistics table shown (median, cold)`, value: first, unit: "ms", note: `target ≤ 1000 ms; ${first <= 1000 ? "met" : "NOT met"}; Chromium, ${runs.length} runs` },
         { name: `scale ${engine}: page ${label}: network idle (median, cold)`, value: idle, unit: "ms", note: `target ≤ 2000 ms; ${idle <= 2000 ? "met" : "NOT met"}` },
       );
