@@ -101,7 +101,7 @@ async function benchEngine(engine: "sqlite" | "postgres", handle: DbHandle): Pro
   ];
 }
 
-async function withSqlite<T>(fn: (handle: DbHandle) => Promise<T>): Promise<T> {
+export async function withSqlite<T>(fn: (handle: DbHandle) => Promise<T>): Promise<T> {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), "lapsebank-bench-clim-"));
   const url = `file:${path.join(dir, "bench.db")}`;
   applyMigrations(url, { quiet: true });
@@ -114,7 +114,7 @@ async function withSqlite<T>(fn: (handle: DbHandle) => Promise<T>): Promise<T> {
   }
 }
 
-async function withPostgres<T>(fn: (handle: DbHandle) => Promise<T>): Promise<T> {
+export async function withPostgres<T>(fn: (handle: DbHandle) => Promise<T>): Promise<T> {
   let serverUrl = process.env.LAPSEBANK_BENCH_POSTGRES_URL ?? process.env.LAPSEBANK_TEST_POSTGRES_URL;
   const clusterDir = "/tmp/lapsebank-bench-clim-pg";
   let started = false;

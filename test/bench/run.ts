@@ -20,7 +20,7 @@ async function main() {
     ["analysis", async () => (await import("./analysis.bench.ts")).benchAnalysis()],
     ["ingest", async () => (await import("./ingest.bench.ts")).benchIngest(engines)],
   ];
-  for (const [name, path] of [["climatology", "./climatology.bench.ts"], ["export", "./export.bench.ts"], ["load", "./load.bench.ts"], ["upload-memory", "./upload-memory.bench.ts"]] as const) {
+  for (const [name, path] of [["climatology", "./climatology.bench.ts"], ["export", "./export.bench.ts"], ["load", "./load.bench.ts"], ["upload-memory", "./upload-memory.bench.ts"], ["scale", "./scale.bench.ts"]] as const) {
     suites.push([name, async () => {
       const mod = (await import(path)) as Record<string, (engines: Engine[]) => Promise<BenchResult[]>>;
       const fn = Object.values(mod).find((v) => typeof v === "function");

@@ -61,9 +61,15 @@ export interface ClimatologyCharts {
   phase: "ascent" | "descent";
   /** Points left out of the charts to keep the page light (all remain in the table and the API). */
   omittedPoints: number;
+  /** Flights drawn as points in each of the box plot and the scatter. */
+  plottedPoints: number;
 }
 
-const MAX_POINTS = 3000;
+/**
+ * Linked points per chart. Each costs the page about six DOM nodes and its title in the page payload, so
+ * the cap is what keeps the Climatology page light at any archive size (issue 14: ≤ 15,000 nodes).
+ */
+export const MAX_CHART_POINTS = 800;
 
 function style(index: number, key: string, label: string): ChartGroupStyle {
   return {
@@ -80,17 +86,19 @@ function round(value: number, digits: number): number {
   return Math.round(value * f) / f;
 }
 
-/** Box, scatter and profile series for the charts; at most 3000 linked points in total (evenly thinned). */
+/** Box, scatter and profile series for the charts; at most MAX_CHART_POINTS linked points per chart in total (evenly thinned). */
 export function buildClimatologyCharts(result: ClimatologyResult, scatterAxis: "day-of-year" | "launch-hour", digits: number): ClimatologyCharts {
   const total = result.groups.reduce((s, g) => s + g.flights.length, 0);
-  const stride = total > MAX_POINTS ? Math.ceil(total / MAX_POINTS) : 1;
+  const stride = total > MAX_CHART_POINTS ? Math.ceil(total / MAX_CHART_POINTS) : 1;
   let omittedPoints = 0;
+  let plottedPoints = 0;
   const boxes: BoxPlotSeries[] = [];
   const scatter: ScatterSeries[] = [];
   result.groups.forEach((group, index) => {
     const s = style(index, group.key, group.label);
     const kept = group.flights.filter((_, i) => i % stride === 0);
     omittedPoints += group.flights.length - kept.length;
+    plottedPoints += kept.length;
     const describePoint = (f: (typeof group.flights)[number]) => `${f.title}, ${f.siteName}: ${round(f.value, digits)} ${result.metric.unit}`;
     if (group.q1 !== null && group.median !== null && group.q3 !== null && group.min !== null && group.max !== null && group.mean !== null) {
       boxes.push({
@@ -141,5 +149,6 @@ export function buildClimatologyCharts(result: ClimatologyResult, scatterAxis: "
     profiles,
     phase: result.band?.phase ?? "ascent",
     omittedPoints,
+    plottedPoints,
   };
 }

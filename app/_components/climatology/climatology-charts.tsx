@@ -100,7 +100,7 @@ export function GroupBoxPlot({ charts }: { charts: ClimatologyCharts }) {
       <figcaption id="box-caption">
         Box: lower to upper quartile; thick line: median; dashed whiskers: minimum to maximum; open diamond: mean. Each point is one flight
         (each group has its own symbol); click a point to open its flight.
-        {charts.omittedPoints > 0 && ` ${charts.omittedPoints} points are thinned out of the charts; the tables list every flight.`}
+        {charts.omittedPoints > 0 && ` The charts show an even sample of ${charts.plottedPoints} of the ${charts.plottedPoints + charts.omittedPoints} flights; the statistics use them all.`}
       </figcaption>
     </figure>
   );
@@ -135,7 +135,10 @@ export function MetricScatter({ charts }: { charts: ClimatologyCharts }) {
           </ScatterChart>
         </ResponsiveContainer>
       </div>
-      <figcaption id="scatter-caption">Each point is one flight; groups differ by symbol and colour. Click a point to open its flight.</figcaption>
+      <figcaption id="scatter-caption">
+        Each point is one flight; groups differ by symbol and colour. Click a point to open its flight.
+        {charts.omittedPoints > 0 && ` An even sample of ${charts.plottedPoints} of the ${charts.plottedPoints + charts.omittedPoints} flights is shown.`}
+      </figcaption>
     </figure>
   );
 }

@@ -105,7 +105,8 @@ export function GroupStatisticsTable({ result }: { result: ClimatologyResult }) 
   );
 }
 
-const SHOWN_FLIGHTS = 200;
+/** Flights listed per group on the page (about eight DOM nodes each); the JSON download lists them all. */
+const SHOWN_FLIGHTS = 50;
 
 /** The contributing flights of one group, each linking to its flight page. */
 export function GroupFlights({ group, unit }: { group: ClimatologyGroup; unit: string }) {
