@@ -21,6 +21,7 @@ function result(flightsPerGroup: number[]): ClimatologyResult {
     excludedCount: 0,
     profiles: [],
     claim: null,
+    crossTable: null,
     invented: { rule: "auto", included: true, contributingCount: next, leftOutCount: 0 },
     warnings: [],
   };
