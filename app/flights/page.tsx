@@ -8,6 +8,7 @@ import { formatKmValue, formatLocalHour, formatNumber, formatSeason, formatUtc }
 import { ArchiveFilterForm } from "./_components/archive-filter-form";
 import { ExportPanel } from "@/app/_components/export/export-panel";
 import { Pager } from "./_components/pager";
+import { SortHeader } from "./_components/sort-header";
 import { HiddenFlightsNotice } from "@/app/_components/hidden-flights-notice";
 
 export const metadata: Metadata = { title: "Archive" };
@@ -64,7 +65,7 @@ export default async function ArchivePage({ searchParams }: { searchParams: Sear
   return (
     <>
       <h1>Archive</h1>
-      <ArchiveFilterForm values={record} schools={choices.schools} sites={choices.sites} />
+      <ArchiveFilterForm key={new URLSearchParams(record).toString()} values={{ ...record, sort: filter.sort, pageSize: String(filter.pageSize) }} schools={choices.schools} sites={choices.sites} />
       {problems.length > 0 && (
         <div className="notice notice-warn" role="status">
           Some filter values were not understood:
@@ -88,16 +89,16 @@ export default async function ArchivePage({ searchParams }: { searchParams: Sear
             Flights {firstRow}–{lastRow} of {result.total}{filtered ? " matching the filter" : ""}.
           </p>
           <div className="table-wrap" role="region" aria-label="Flights" tabIndex={0}>
-            <table>
+            <table className="archive-table">
               <thead>
                 <tr>
-                  <th scope="col">Launch (UTC / local)</th>
-                  <th scope="col" className="title-cell">Title</th>
+                  <SortHeader label="Launch (UTC / local)" choice={{ first: "launch-desc", second: "launch-asc" }} current={filter.sort} record={record} />
+                  <SortHeader label="Title" choice={{ first: "title" }} current={filter.sort} record={record} className="title-cell" />
                   <th scope="col">School</th>
                   <th scope="col">Site</th>
                   <th scope="col">Season</th>
-                  <th scope="col" className="num">Tropopause (km)</th>
-                  <th scope="col" className="num">Lapse rate, troposphere (K/km)</th>
+                  <SortHeader label="Tropopause (km)" choice={{ first: "tropopause-desc", second: "tropopause-asc" }} current={filter.sort} record={record} className="num" />
+                  <SortHeader label="Lapse rate, troposphere (K/km)" choice={{ first: "lapse-desc", second: "lapse-asc" }} current={filter.sort} record={record} className="num" />
                   <th scope="col" className="num">Max altitude (km)</th>
                   <th scope="col">Surface inversion</th>
                   <th scope="col">QC</th>
