@@ -39,10 +39,12 @@ export default async function HomePage() {
       </div>
       <h2>What you can do here</h2>
       <ul>
-        <li><Link href="/flights">Archive</Link>: filter flights by school, site, date and season; sort by launch time, tropopause or lapse rate.</li>
+        <li><Link href="/flights">Archive</Link>: filter flights by school, site, date and season; sort by a click on a column (launch time, title, tropopause, lapse rate).</li>
         <li><Link href="/upload">Upload</Link>: one or many logger files, with a preview of the parsed rows before anything is stored.</li>
         <li>Each flight page shows the temperature–altitude profile, layers with lapse rate ± standard error and stability class, quality-control notes and the raw file.</li>
-        <li>Scripts can use the JSON API under <code>/api/v1/flights</code>.</li>
+        <li><Link href="/climatology">Climatology and claim checks</Link>: lapse rates, tropopause and inversions across flights, grouped by season, month, site or time of day; test a claim such as &ldquo;the mean lapse rate is 6.5 K/km&rdquo; or &ldquo;summer differs from autumn&rdquo;.</li>
+        <li>Export: the Archive, a Climatology result or one flight as a data package (every table, datapackage.json, citation, README), one CSV table or JSON, from the Export panel on those pages.</li>
+        <li>Scripts can use the JSON API under <code>/api/v1/flights</code>, <code>/api/v1/climatology</code> and <code>/api/v1/export</code>.</li>
       </ul>
       <Cautions />
     </>

@@ -78,7 +78,8 @@ export async function loadDemoProgram(
           sensorId: id(sensorIds, flight.sensorKey, "sensor"),
           launchAtUtc: flight.launchAtUtc,
           title: flight.title,
-          visibility: "program",
+          // Public, so a new visitor meets a working archive; it stays labelled invented everywhere.
+          visibility: "public",
           mode: "strict",
         },
         actor: DEMO_ACTOR,

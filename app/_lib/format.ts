@@ -161,3 +161,17 @@ export function describeCalibration(spec: unknown): string {
   if (s.correction) parts.push(`field correction gain ${s.correction.gain}, offset ${s.correction.offsetK} K`);
   return parts.join(" → ");
 }
+
+const SENSOR_KIND_WORDS: Record<string, string> = { "ntc-thermistor": "NTC thermistor", "linear-voltage": "linear voltage sensor" };
+
+/** A sensor kind in words: the codes the program uses read as words; free text stays as typed. */
+export function describeSensorKind(kind: string): string {
+  return SENSOR_KIND_WORDS[kind] ?? kind;
+}
+
+const VISIBILITY_WORDS: Record<string, string> = { public: "public (anyone)", program: "program (members of every school)", school: "school (its own members only)" };
+
+/** Who may see a flight, in words. */
+export function describeVisibility(visibility: string): string {
+  return VISIBILITY_WORDS[visibility] ?? visibility;
+}

@@ -12,6 +12,8 @@ import { ClaimResult, CrossTableView, GroupFlights, GroupStatisticsTable, digits
 import { GroupBoxPlot, GroupProfiles, MetricScatter } from "@/app/_components/climatology/climatology-charts";
 import { buildClimatologyCharts } from "@/app/_components/climatology/chart-data";
 import { ExportPanel } from "@/app/_components/export/export-panel";
+import { HiddenFlightsNotice } from "@/app/_components/hidden-flights-notice";
+import { countHiddenFlights } from "@/lib/query/flights";
 
 export const metadata: Metadata = { title: "Climatology" };
 
@@ -42,15 +44,17 @@ export default async function ClimatologyPage({ searchParams }: { searchParams: 
   const hasQuery = Object.keys(record).length > 0;
 
   let result: ClimatologyResult | null = null;
-  let problem: { message: string; field: string | null } | null = null;
+  let problem: { message: string; field: string | null; code: string } | null = null;
   if (parsed.ok) {
     try {
       result = await getClimatologyCached(viewer, parsed.query);
     } catch (error) {
       if (!(error instanceof ClimatologyQueryError)) throw error;
-      problem = { message: error.message, field: error.field };
+      problem = { message: error.message, field: error.field, code: error.code };
     }
   }
+  // Nothing to show while members-only flights exist: say so (the number only) instead of a bare "no result".
+  const hiddenCount = problem?.code === "no-flights" ? await countHiddenFlights(viewer) : 0;
   const fieldErrors = parsed.ok ? (problem?.field ? { [problem.field]: [problem.message] } : {}) : parsed.fieldErrors;
   const search = parsed.ok ? climatologySearchParams(parsed.query, record).toString() : "";
   const charts = result && parsed.ok ? buildClimatologyCharts(result, parsed.query.chartX, digitsForUnit(result.metric.unit)) : null;
@@ -70,6 +74,7 @@ export default async function ClimatologyPage({ searchParams }: { searchParams: 
           <ul>{Object.entries(parsed.fieldErrors).map(([field, messages]) => <li key={field}>{field}: {messages.join("; ")}</li>)}</ul>
         </div>
       )}
+      {hiddenCount > 0 && <HiddenFlightsNotice hiddenCount={hiddenCount} />}
       {problem && (
         <div className={`notice ${problem.field === null ? "" : "notice-error"}`} role="alert">
           <p><strong>No result.</strong> {problem.message}.</p>

@@ -1,13 +1,15 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { archiveFilterSchema, searchParamsToRecord, type ArchiveFilter } from "@/lib/query/archive-filter";
-import { listFlights } from "@/lib/query/flights";
+import { countHiddenFlights, listFlights } from "@/lib/query/flights";
 import { listSchoolsAndSites } from "@/lib/query/setup";
 import { getViewer } from "@/app/_lib/viewer";
 import { formatKmValue, formatLocalHour, formatNumber, formatSeason, formatUtc } from "@/app/_lib/format";
 import { ArchiveFilterForm } from "./_components/archive-filter-form";
 import { ExportPanel } from "@/app/_components/export/export-panel";
 import { Pager } from "./_components/pager";
+import { SortHeader } from "./_components/sort-header";
+import { HiddenFlightsNotice } from "@/app/_components/hidden-flights-notice";
 
 export const metadata: Metadata = { title: "Archive" };
 
@@ -24,6 +26,11 @@ function parseFilter(record: Record<string, string>): { filter: ArchiveFilter; p
     const parsed = archiveFilterSchema.safeParse(input);
     if (parsed.success) return { filter: parsed.data, problems };
     for (const issue of parsed.error.issues) {
+      if (issue.code === "unrecognized_keys") {
+        problems.push(`${issue.message} (ignored)`);
+        for (const key of issue.keys) delete input[key];
+        continue;
+      }
       const key = String(issue.path[0] ?? "");
       problems.push(`${key || "filter"}: ${issue.message} (ignored)`);
       delete input[key];
@@ -32,14 +39,25 @@ function parseFilter(record: Record<string, string>): { filter: ArchiveFilter; p
   return { filter: archiveFilterSchema.parse({}), problems };
 }
 
+/** Parameters the app itself puts in the Archive address that are not part of the filter. */
+const PAGE_ONLY_KEYS = ["deleted"];
+
+/** The filter's own parameters: page-only ones and unknown ones left out (so links and exports carry none). */
+function filterRecord(record: Record<string, string>, filter: ArchiveFilter): Record<string, string> {
+  const known = new Set(Object.keys(archiveFilterSchema.shape));
+  return Object.fromEntries(Object.entries(record).filter(([key]) => known.has(key) && (filter as Record<string, unknown>)[key] !== undefined));
+}
+
 const FILTER_KEYS = ["school", "site", "from", "to", "season"] as const;
 
 export default async function ArchivePage({ searchParams }: { searchParams: SearchParams }) {
-  const record = searchParamsToRecord(await searchParams);
-  const { filter, problems } = parseFilter(record);
+  const raw = searchParamsToRecord(await searchParams);
+  const { filter, problems } = parseFilter(Object.fromEntries(Object.entries(raw).filter(([key]) => !PAGE_ONLY_KEYS.includes(key))));
+  const record = filterRecord(raw, filter);
   const viewer = await getViewer();
   const [result, choices] = await Promise.all([listFlights(viewer, filter), listSchoolsAndSites()]);
   const filtered = FILTER_KEYS.some((key) => filter[key] !== undefined);
+  const hiddenCount = result.total === 0 && !filtered ? await countHiddenFlights(viewer) : 0;
   const pageCount = Math.max(1, Math.ceil(result.total / result.pageSize));
   const firstRow = result.total === 0 ? 0 : (result.page - 1) * result.pageSize + 1;
   const lastRow = Math.min(result.total, result.page * result.pageSize);
@@ -47,7 +65,7 @@ export default async function ArchivePage({ searchParams }: { searchParams: Sear
   return (
     <>
       <h1>Archive</h1>
-      <ArchiveFilterForm values={record} schools={choices.schools} sites={choices.sites} />
+      <ArchiveFilterForm key={new URLSearchParams(record).toString()} values={{ ...record, sort: filter.sort, pageSize: String(filter.pageSize) }} schools={choices.schools} sites={choices.sites} />
       {problems.length > 0 && (
         <div className="notice notice-warn" role="status">
           Some filter values were not understood:
@@ -57,6 +75,8 @@ export default async function ArchivePage({ searchParams }: { searchParams: Sear
       {result.total === 0 ? (
         filtered ? (
           <p className="notice">No flights match this filter. <Link href="/flights">Clear the filter</Link>.</p>
+        ) : hiddenCount > 0 ? (
+          <HiddenFlightsNotice hiddenCount={hiddenCount} />
         ) : (
           <div className="notice">
             <p><strong>The archive is empty.</strong></p>
@@ -69,16 +89,16 @@ export default async function ArchivePage({ searchParams }: { searchParams: Sear
             Flights {firstRow}–{lastRow} of {result.total}{filtered ? " matching the filter" : ""}.
           </p>
           <div className="table-wrap" role="region" aria-label="Flights" tabIndex={0}>
-            <table>
+            <table className="archive-table">
               <thead>
                 <tr>
-                  <th scope="col">Launch (UTC / local)</th>
-                  <th scope="col" className="title-cell">Title</th>
+                  <SortHeader label="Launch (UTC / local)" choice={{ first: "launch-desc", second: "launch-asc" }} current={filter.sort} record={record} />
+                  <SortHeader label="Title" choice={{ first: "title" }} current={filter.sort} record={record} className="title-cell" />
                   <th scope="col">School</th>
                   <th scope="col">Site</th>
                   <th scope="col">Season</th>
-                  <th scope="col" className="num">Tropopause (km)</th>
-                  <th scope="col" className="num">Lapse rate, troposphere (K/km)</th>
+                  <SortHeader label="Tropopause (km)" choice={{ first: "tropopause-desc", second: "tropopause-asc" }} current={filter.sort} record={record} className="num" />
+                  <SortHeader label="Lapse rate, troposphere (K/km)" choice={{ first: "lapse-desc", second: "lapse-asc" }} current={filter.sort} record={record} className="num" />
                   <th scope="col" className="num">Max altitude (km)</th>
                   <th scope="col">Surface inversion</th>
                   <th scope="col">QC</th>

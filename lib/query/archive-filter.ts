@@ -1,11 +1,15 @@
 import { z } from "zod";
 import type { Prisma } from "../db/index.ts";
 import { flightVisibilityWhere, type Viewer } from "../auth/visibility.ts";
+import { strictQueryObject } from "./strict-params.ts";
 
 const blankToUndefined = (v: unknown) => (v === "" || v === null ? undefined : v);
 
-/** Archive list filter, shared by the Archive page (URL search params) and GET /api/v1/flights. */
-export const archiveFilterSchema = z.object({
+/**
+ * Archive list filter, shared by the Archive page (URL search params) and GET /api/v1/flights.
+ * Strict: an unknown parameter is refused by name rather than ignored.
+ */
+export const archiveFilterSchema = strictQueryObject({
   school: z.preprocess(blankToUndefined, z.string().max(64).optional()),
   site: z.preprocess(blankToUndefined, z.string().max(64).optional()),
   from: z.preprocess(blankToUndefined, z.coerce.date({ error: "from must be a date (YYYY-MM-DD)" }).optional()),

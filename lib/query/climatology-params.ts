@@ -16,6 +16,7 @@ import {
   type SeasonName,
 } from "../analysis/season.ts";
 import { HEIGHT_REFERENCES } from "../analysis/band-coverage.ts";
+import { strictQueryObject } from "./strict-params.ts";
 
 export const CLIMATOLOGY_METRICS = [
   "tropospheric-lapse-rate",
@@ -403,8 +404,11 @@ function claimGroupsOverlapStatically(a: ClaimGroup, b: ClaimGroup): string | nu
 const enumWithDefault = <T extends readonly [string, ...string[]]>(values: T, fallback: T[number], label: string) =>
   z.preprocess(blankToUndefined, z.enum(values, { error: `${label} must be one of: ${values.join(", ")}` }).default(fallback as never));
 
-/** The climatology query as it arrives (URL search params or API query string), before checks across fields. */
-const climatologyBaseSchema = z.object({
+/**
+ * The climatology query as it arrives (URL search params or API query string), before checks across
+ * fields. Strict: an unknown parameter (`sites=` for `site=`) is refused by name, never ignored.
+ */
+const climatologyBaseSchema = strictQueryObject({
   school: idList,
   site: idList,
   from: isoDate("from"),
@@ -555,7 +559,7 @@ export function parseClimatologyQuery(record: Record<string, string>): Climatolo
   if (parsed.success) return { ok: true, query: parsed.data };
   const fieldErrors: Record<string, string[]> = {};
   for (const issue of parsed.error.issues) {
-    const key = String(issue.path[0] ?? "query");
+    const key = issue.code === "unrecognized_keys" ? "parameters" : String(issue.path[0] ?? "query");
     (fieldErrors[key] ??= []).push(issue.message);
   }
   const message = Object.entries(fieldErrors)

@@ -98,6 +98,14 @@ export async function countFlights(viewer: Viewer, db: Db = getDb()): Promise<nu
   return db.flight.count({ where: flightVisibilityWhere(viewer) });
 }
 
+/**
+ * How many flights (not deleted) exist that this viewer may not see: the number only, so a visitor
+ * facing an empty list learns that signing in would show more, and nothing about those flights.
+ */
+export async function countHiddenFlights(viewer: Viewer, db: Db = getDb()): Promise<number> {
+  return db.flight.count({ where: { AND: [{ deletedAt: null }, { NOT: flightVisibilityWhere(viewer) }] } });
+}
+
 /** One flight with its current run, summary, layers, raw-file facts and run history. Null when not visible. */
 export async function getFlight(viewer: Viewer, flightId: string, db: Db = getDb()) {
   const flight = await db.flight.findFirst({

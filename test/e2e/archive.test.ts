@@ -133,3 +133,43 @@ describe("archive", () => {
     expect(pageErrors).toEqual([]);
   });
 });
+
+describe("archive table", () => {
+  it("sorts by a click on a column header (a second click reverses), fits 1280 px, and shows the page size in use", async () => {
+    const { page } = session;
+    await page.goto("/flights?pageSize=30");
+    // The size in use is the one selected, even when a link asks for one the list does not offer.
+    expect(await page.getByLabel("Rows per page").inputValue()).toBe("30");
+    // Every column, Surface inversion and QC included, is visible without a sideways scroll.
+    const fits = await page.getByRole("region", { name: "Flights" }).evaluate((el) => el.scrollWidth <= el.clientWidth);
+    expect(fits).toBe(true);
+
+    const header = page.getByRole("region", { name: "Flights" }).getByRole("columnheader", { name: "Tropopause (km)" });
+    await header.getByRole("link").click();
+    await page.waitForURL(/[?&]sort=tropopause-desc\b/);
+    expect(await page.getByRole("columnheader", { name: "Tropopause (km)" }).getAttribute("aria-sort")).toBe("descending");
+    const column = await columnIndex(page, "Flights", "Tropopause (km)");
+    const descending = await numbersIn(column);
+    expect(descending.length).toBeGreaterThan(1);
+    expect(descending).toEqual([...descending].sort((a, b) => b - a));
+
+    await page.getByRole("columnheader", { name: "Tropopause (km)" }).getByRole("link").click();
+    await page.waitForURL(/[?&]sort=tropopause-asc\b/);
+    expect(await page.getByRole("columnheader", { name: "Tropopause (km)" }).getAttribute("aria-sort")).toBe("ascending");
+    const ascending = await numbersIn(column);
+    expect(ascending).toEqual([...ascending].sort((a, b) => a - b));
+    expect(await page.getByLabel("Sort by").inputValue()).toBe("tropopause-asc");
+    // The filter survives the click.
+    expect(page.url()).toMatch(/[?&]pageSize=30\b/);
+
+    async function numbersIn(index: number): Promise<number[]> {
+      const rows = dataRows(page, "Flights");
+      const values: number[] = [];
+      for (let i = 0; i < (await rows.count()); i++) {
+        const text = await cellText(rows.nth(i), index);
+        if (/^\d/.test(text)) values.push(firstNumber(text));
+      }
+      return values;
+    }
+  });
+});

@@ -141,6 +141,19 @@ describe("sharing across schools on two app processes", () => {
     await context.close();
   });
 
+  test("after a wrong password the email stays filled in and Enter signs in with the right one", async () => {
+    const [one] = bases as [string, string];
+    const { context, page } = await newContext();
+    await signInThroughForm(page, one, "bob@example.org", "not the password");
+    const form = page.getByRole("form", { name: "Sign in" });
+    expect(await textOf(form.getByRole("alert"))).toContain("wrong");
+    expect(await form.getByLabel("Email").inputValue()).toBe("bob@example.org");
+    await form.getByLabel("Password").fill(PASSWORD);
+    await form.getByLabel("Password").press("Enter");
+    await page.waitForURL(`${one}/flights`, { timeout: 20_000 });
+    await context.close();
+  });
+
   test("failed logins are counted across both processes; the owner signs in once the wait is over", async () => {
     const [one, two] = bases as [string, string];
     const target = "coordinator@example.org";

@@ -309,7 +309,9 @@ describe.each(testEngines())("climatology on %s (demo subset)", (engine) => {
   test("visibilitySql keeps exactly the flights flightVisibilityWhere keeps, for every kind of viewer", async () => {
     const flights = await database.db.flight.findMany({ orderBy: { launchAtUtc: "asc" }, select: { id: true, schoolId: true } });
     const schools = [...new Set(flights.map((f) => f.schoolId))];
-    // Fixture: mix visibilities and soft-delete one flight.
+    // Fixture: every flight shared with the program (the demo loader makes them public), then mix
+    // visibilities and soft-delete some.
+    await database.db.flight.updateMany({ data: { visibility: "program" } });
     const plan: Array<{ visibility: string; deleted?: boolean }> = [
       { visibility: "school" }, { visibility: "school" }, { visibility: "public" }, { visibility: "public", deleted: true },
       { visibility: "program", deleted: true }, { visibility: "school" }, { visibility: "public" },

@@ -1,6 +1,6 @@
 "use client";
 
-import { useActionState } from "react";
+import { useActionState, useState } from "react";
 import { changePasswordAction, createInvitationAction, createTokenAction, signInAction, signUpAction, type FormState } from "../actions";
 
 function Message({ state }: { state: FormState }) {
@@ -24,11 +24,14 @@ function FieldError({ state, name }: { state: FormState; name: string }) {
 
 export function SignInForm({ next }: { next: string }) {
   const [state, action, pending] = useActionState(signInAction, null);
+  // Controlled, so the reset React gives a form after its action leaves the email in place: after a
+  // wrong password a retry needs only the password (an emptied required email silently blocked it).
+  const [email, setEmail] = useState("");
   return (
     <form action={action} className="panel" aria-labelledby="sign-in-heading">
       <h2 id="sign-in-heading">Sign in</h2>
       <input type="hidden" name="next" value={next} />
-      <label className="field">Email<input name="email" type="email" autoComplete="username" required /></label>
+      <label className="field">Email<input name="email" type="email" autoComplete="username" required value={email} onChange={(event) => setEmail(event.target.value)} /></label>
       <FieldError state={state} name="email" />
       <label className="field">Password<input name="password" type="password" autoComplete="current-password" required /></label>
       <FieldError state={state} name="password" />

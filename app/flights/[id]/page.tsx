@@ -13,8 +13,7 @@ import { FlightAdminPanel } from "./_components/flight-admin-panel";
 import { buildProfileChartData } from "@/app/_lib/profile-series";
 import {
   describeCalibration, describeLayer, describeStability, describeTropopauseStatus, formatBytes, formatCelsius, formatKelvin,
-  formatKm, formatLapseRate, formatLocalDateTime, formatMetres, formatNumber, formatSeason, formatStdErr, formatUtc,
-} from "@/app/_lib/format";
+  formatKm, formatLapseRate, formatLocalDateTime, formatMetres, formatNumber, formatSeason, formatStdErr, formatUtc, describeSensorKind, describeVisibility } from "@/app/_lib/format";
 
 type Params = Promise<{ id: string }>;
 
@@ -71,8 +70,8 @@ export default async function FlightPage({ params }: { params: Params }) {
           </dd>
         </div>
         {flight.payload && <div><dt>Payload</dt><dd>{flight.payload.name}</dd></div>}
-        {flight.sensor && <div><dt>Sensor</dt><dd>{flight.sensor.serial} ({flight.sensor.kind})</dd></div>}
-        <div><dt>Visibility</dt><dd>{flight.visibility}{flight.synthetic ? " · demo data" : ""}</dd></div>
+        {flight.sensor && <div><dt>Sensor</dt><dd>{flight.sensor.serial} ({describeSensorKind(flight.sensor.kind)})</dd></div>}
+        <div><dt>Visibility</dt><dd>{describeVisibility(flight.visibility)}{flight.synthetic ? " · demo data" : ""}</dd></div>
       </dl>
       {flight.notes && <p className="muted">{flight.notes}</p>}
       <FlightAdminPanel viewer={viewer} flight={flight} />

@@ -27,6 +27,14 @@ const SORTS = [
   { value: "title", label: "Title A–Z" },
 ];
 
+const PAGE_SIZES = ["10", "25", "50", "100", "200"];
+
+/** The offered page sizes, with the size in use among them (a link may ask for any size up to 200). */
+function pageSizeChoices(inUse: string | undefined): string[] {
+  if (inUse === undefined || PAGE_SIZES.includes(inUse)) return PAGE_SIZES;
+  return [...PAGE_SIZES, inUse].sort((a, b) => Number(a) - Number(b));
+}
+
 /** A plain GET form: every filter lives in the URL, so a filtered archive can be bookmarked and shared. */
 export function ArchiveFilterForm({ values, schools, sites }: { values: Record<string, string>; schools: Option[]; sites: Array<Option & { schoolId: string }> }) {
   return (
@@ -75,7 +83,7 @@ export function ArchiveFilterForm({ values, schools, sites }: { values: Record<s
       <div className="field">
         <label htmlFor="f-size">Rows per page</label>
         <select id="f-size" name="pageSize" defaultValue={values.pageSize ?? "25"}>
-          {["10", "25", "50", "100", "200"].map((n) => <option key={n} value={n}>{n}</option>)}
+          {pageSizeChoices(values.pageSize).map((n) => <option key={n} value={n}>{n}</option>)}
         </select>
       </div>
       <div className="actions">

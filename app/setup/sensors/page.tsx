@@ -1,4 +1,5 @@
 import type { Metadata } from "next";
+import { describeSensorKind } from "@/app/_lib/format";
 import Link from "next/link";
 import { connection } from "next/server";
 import { listSetupSchools, listSetupSensors } from "@/lib/query/setup-pages";
@@ -30,7 +31,7 @@ export default async function SetupSensorsPage({ searchParams }: { searchParams:
           <tbody>
             {shown.map((s) => (
               <tr key={s.id}>
-                <td><Link href={`/setup/sensors/${s.id}`}>{s.serial}</Link></td><td>{s.schoolName}</td><td>{s.kind}</td><td className="num">{s.timeConstantS}</td>
+                <td><Link href={`/setup/sensors/${s.id}`}>{s.serial}</Link></td><td>{s.schoolName}</td><td>{describeSensorKind(s.kind)}</td><td className="num">{s.timeConstantS}</td>
                 <td>{s.latestMount ? `${s.latestMount.payloadName} (${day(s.latestMount.fromUtc)} to ${s.latestMount.toUtc ? day(s.latestMount.toUtc) : "now"})` : <span className="muted">not recorded</span>}</td>
                 <td>{s.calibrations.length ? s.calibrations.map((c, i) => <span key={c.id}>{i > 0 ? "; " : ""}<Link href={`/setup/calibrations/${c.id}`}>{c.method}</Link> {day(c.validFromUtc)}–{day(c.validToUtc)}</span>) : <span className="muted">none</span>}</td>
               </tr>

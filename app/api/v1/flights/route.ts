@@ -6,14 +6,17 @@ import { getEnv } from "@/lib/env";
 import { getViewer } from "@/app/_lib/viewer";
 import { requirePermission, requirePermissionSomewhere } from "@/lib/auth/permissions";
 import { readMultipartBody } from "@/lib/http/request-body";
-import { absoluteUrl, jsonError, jsonOk, validationError, withErrors } from "../_lib/respond";
+import { absoluteUrl, jsonError, jsonOk, withErrors } from "../_lib/respond";
 
 export const runtime = "nodejs";
 
-/** GET /api/v1/flights?school=&site=&from=&to=&season=&sort=&page=&pageSize= */
+/**
+ * GET /api/v1/flights?school=&site=&from=&to=&season=&sort=&page=&pageSize= — a query that does not
+ * validate, an unknown parameter included, is 422 naming the parameter (as GET /api/v1/climatology).
+ */
 export const GET = withErrors(async (request: Request) => {
   const parsed = archiveFilterSchema.safeParse(searchParamsToRecord(new URL(request.url).searchParams));
-  if (!parsed.success) return validationError(parsed.error);
+  if (!parsed.success) return jsonError(422, "invalid-query", parsed.error.issues.map((i) => `${i.path.join(".") || "query"}: ${i.message}`).join("; "));
   const result = await listFlights(await getViewer(), parsed.data);
   return jsonOk({
     flights: result.rows.map((row) => ({ ...row, url: absoluteUrl(request, `/flights/${row.id}`), apiUrl: absoluteUrl(request, `/api/v1/flights/${row.id}`) })),

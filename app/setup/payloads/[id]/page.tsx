@@ -1,4 +1,5 @@
 import type { Metadata } from "next";
+import { describeSensorKind } from "@/app/_lib/format";
 import Link from "next/link";
 import { notFound } from "next/navigation";
 import { connection } from "next/server";
@@ -33,7 +34,7 @@ export default async function SetupPayloadPage({ params }: { params: Promise<{ i
             <thead><tr><th scope="col">Sensor</th><th scope="col">Kind</th><th scope="col">From (UTC)</th><th scope="col">To (UTC)</th></tr></thead>
             <tbody>
               {payload.mounts.map((m) => (
-                <tr key={m.id}><td><Link href={`/setup/sensors/${m.sensorId}`}>{m.serial}</Link></td><td>{m.kind}</td><td>{m.fromUtc.slice(0, 10)}</td><td>{m.toUtc ? m.toUtc.slice(0, 10) : "still mounted"}</td></tr>
+                <tr key={m.id}><td><Link href={`/setup/sensors/${m.sensorId}`}>{m.serial}</Link></td><td>{describeSensorKind(m.kind)}</td><td>{m.fromUtc.slice(0, 10)}</td><td>{m.toUtc ? m.toUtc.slice(0, 10) : "still mounted"}</td></tr>
               ))}
             </tbody>
           </table>

@@ -5,7 +5,7 @@ import { connection } from "next/server";
 import { getSetupSensor, listSetupSchools } from "@/lib/query/setup-pages";
 import { getSetupItemUses } from "@/lib/ingest/setup-reads";
 import { MountForm, SensorForm } from "@/app/_components/setup/sensor-form";
-import { describeCalibration } from "@/app/_lib/format";
+import { describeCalibration, describeSensorKind } from "@/app/_lib/format";
 import { getViewer } from "@/app/_lib/viewer";
 import type { SearchParams } from "../../_lib/search-params";
 import { membersOnly } from "@/app/setup/_lib/members-only";
@@ -29,7 +29,7 @@ export default async function SetupSensorPage({ params, searchParams }: { params
     <>
       <p className="small"><Link href="/setup/sensors">← Sensors</Link></p>
       <h1>Sensor {sensor.serial}</h1>
-      <p className="muted">{sensor.schoolName} · {sensor.kind}</p>
+      <p className="muted">{sensor.schoolName} · {describeSensorKind(sensor.kind)}</p>
       {saved && <p className="notice notice-ok" role="status">Calibration saved. No stored flight is affected by it.</p>}
       <SensorForm schools={schools} initial={{ id: sensor.id, schoolId: sensor.schoolId, serial: sensor.serial, kind: sensor.kind, timeConstantS: sensor.timeConstantS, notes: sensor.notes }} />
 
