@@ -241,7 +241,7 @@ async function chooseCalibration(
  * that is often impossible raises "implausible-altitudes" instead, and a faulty temperature sensor
  * "temperature-stuck" or "temperature-alternating" — none of those is informational.
  */
-export const INFORMATIONAL_FLAGS = new Set(["no-landing", "lag-corrected", "no-tropopause", "tropopause-undetermined", "altitude-from-pressure"]);
+export const INFORMATIONAL_FLAGS = new Set(["no-landing", "lag-corrected", "no-tropopause", "tropopause-undetermined", "altitude-from-pressure", "standard-atmosphere-pressure"]);
 
 /** Finite number or null: nothing non-finite ever reaches the database. */
 function finiteOrNull(value: number | null | undefined): number | null {

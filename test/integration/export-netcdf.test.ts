@@ -4,6 +4,7 @@
  * back with h5wasm; values equal the database's; CLI, API and in-process export write the same
  * content; a visitor's file holds only public flights.
  */
+import { ANALYSIS_VERSION } from "../../lib/analysis/types.ts";
 import { execFileSync, spawn } from "node:child_process";
 import fs from "node:fs";
 import os from "node:os";
@@ -115,7 +116,7 @@ describe.each(testEngines())("NetCDF export on %s", (engine) => {
       'air_pressure:standard_name = "air_pressure" ;', 'relative_humidity:standard_name = "relative_humidity" ;', 'altitude:standard_name = "altitude" ;',
       'time:units = "seconds since 1970-01-01 00:00:00 UTC" ;', 'tropopause_altitude:standard_name = "tropopause_altitude" ;',
       'tropospheric_lapse_rate:standard_name = "air_temperature_lapse_rate" ;', 'synthetic:flag_values = 0b, 1b ;',
-      ':source = "Lapsebank', ':lapsebank_analysis_versions = "1.2.0" ;', ':license = "CC-BY-4.0:', ":lapsebank_invented_flight_count = 1 ;",
+      ':source = "Lapsebank', `:lapsebank_analysis_versions = "${ANALYSIS_VERSION}" ;`, ':license = "CC-BY-4.0:', ":lapsebank_invented_flight_count = 1 ;",
       ':invented_data = "1 of the 3 flights in this export is INVENTED',
     ]) {
       expect(header).toContain(line);
