@@ -11,6 +11,7 @@ export const metadata: Metadata = { title: "Account" };
 export default async function AccountPage({ searchParams }: { searchParams: Promise<Record<string, string | string[] | undefined>> }) {
   const params = await searchParams;
   const next = typeof params.next === "string" ? params.next : "";
+  const invitation = typeof params.invitation === "string" ? params.invitation.slice(0, 200) : "";
   const viewer = await getViewer();
   const error = params.error === "token-not-found" ? "No such token among yours: nothing was revoked." : "";
   if (viewer.kind === "member" && !can(viewer, "account.manage", { schoolId: null })) {
@@ -29,7 +30,7 @@ export default async function AccountPage({ searchParams }: { searchParams: Prom
         {anyAccount ? <p className="lead">Sign in to see your school&apos;s flights and the program&apos;s shared flights, and to upload. Without an account you see public flights only.</p> : null}
         <div className="cards">
           {anyAccount ? <SignInForm next={next} /> : null}
-          <SignUpForm next={next} first={!anyAccount} />
+          <SignUpForm next={next} first={!anyAccount} invitation={invitation} />
         </div>
       </>
     );
