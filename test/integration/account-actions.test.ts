@@ -152,4 +152,36 @@ describe("account actions, client address and public URLs (SQLite)", () => {
     expect((await viewerFromSession(database.db, here))?.kind).toBe("member");
     expect(await viewerFromSession(database.db, elsewhere.sessionSecret)).toBeNull();
   });
+
+  test("invitation links are absolute; invitation-only refuses plain sign-up and admits through a link", async () => {
+    request.env = { LAPSEBANK_PUBLIC_URL: "https://archive.example.org", LAPSEBANK_TRUSTED_PROXY: parseTrustedProxy(undefined) };
+    request.headers = new Headers({ [PEER_ADDRESS_HEADER]: "127.0.0.1", host: "localhost:3000" });
+    // The owner (the first account here: program admin, and this school's admin) is still signed in.
+    const made = await actions.createInvitationAction(null, form({ schoolId: school.school.id, role: "reader" }));
+    // Issue 16: before, the link was the bare path /invite/<secret>.
+    expect(made?.secret).toMatch(/^https:\/\/archive\.example\.org\/invite\/[A-Za-z0-9_-]+$/);
+    const secret = new URL(made?.secret ?? "").pathname.split("/").at(-1) ?? "";
+
+    const setup = await import("../../app/setup/actions.ts");
+    expect(await setup.saveInvitationOnly({ invitationOnly: true })).toMatchObject({ ok: true, data: { invitationOnly: true } });
+    const ownerCookie = request.cookies.get(SESSION_COOKIE)!;
+
+    // A visitor without a link is refused with a message saying why.
+    request.cookies = new Map();
+    const refused = await actions.signUpAction(null, form({ email: "walk-in@example.org", password, displayName: "Walk-in" }));
+    expect(refused).toMatchObject({ ok: false });
+    expect(refused?.message).toMatch(/invitation only/);
+    expect(await database.db.user.count({ where: { email: "walk-in@example.org" } })).toBe(0);
+    // A visitor cannot change the rule.
+    expect(await setup.saveInvitationOnly({ invitationOnly: false })).toMatchObject({ ok: false });
+
+    // Through the link: the account is made and joins the school.
+    expect(await redirectOf(actions.signUpAction(null, form({ email: "reader@example.org", password, displayName: "Reader", invitation: secret, next: `/invite/${secret}` })))).toBe("/account?joined=1");
+    const reader = await database.db.user.findUniqueOrThrow({ where: { email: "reader@example.org" } });
+    expect((await database.db.membership.findFirstOrThrow({ where: { userId: reader.id } })).role).toBe("reader");
+
+    request.cookies = new Map([[SESSION_COOKIE, ownerCookie]]);
+    expect(await setup.saveInvitationOnly({ invitationOnly: false })).toMatchObject({ ok: true, data: { invitationOnly: false } });
+    request.env = {};
+  });
 });
