@@ -115,7 +115,7 @@ export async function revokeTokenAction(formData: FormData): Promise<void> {
 export async function acceptInvitationAction(formData: FormData): Promise<void> {
   const viewer = await getViewer();
   const secret = String(formData.get("secret") ?? "");
-  if (viewer.kind !== "member") redirect(`/account?next=${encodeURIComponent(`/invite/${secret}`)}`);
+  if (viewer.kind !== "member") redirect(`/account?next=${encodeURIComponent(`/invite/${secret}`)}&invitation=${encodeURIComponent(secret)}`);
   try {
     await acceptInvitation(getDb(), secret, viewer.userId);
   } catch (error) {

@@ -184,4 +184,32 @@ describe("account actions, client address and public URLs (SQLite)", () => {
     expect(await setup.saveInvitationOnly({ invitationOnly: false })).toMatchObject({ ok: true, data: { invitationOnly: false } });
     request.env = {};
   });
+
+  test("the invitation page names school and role, and shows Accept only while the link is open", async () => {
+    request.headers = new Headers({ [PEER_ADDRESS_HEADER]: "127.0.0.1" });
+    const { createInvitation } = await import("../../lib/auth/accounts.ts");
+    const { renderToStaticMarkup } = await import("react-dom/server");
+    const page = (await import("../../app/invite/[secret]/page.tsx")).default;
+    const html = async (secret: string) => renderToStaticMarkup(await page({ params: Promise.resolve({ secret }), searchParams: Promise.resolve({}) }));
+    const open = await createInvitation(database.db, { schoolId: school.school.id, role: "school-admin", createdById: null });
+    const used = await createInvitation(database.db, { schoolId: school.school.id, role: "contributor", createdById: null });
+    const expired = await createInvitation(database.db, { schoolId: school.school.id, role: "reader", createdById: null });
+    await database.db.invitation.update({ where: { id: used.id }, data: { usedAt: new Date() } });
+    await database.db.invitation.update({ where: { id: expired.id }, data: { expiresAt: new Date(Date.now() - 60_000) } });
+    // The owner is signed in, so an open link offers Accept.
+    const openPage = await html(open.secret);
+    // Issue 16: before, the page named neither school nor role and always offered Accept.
+    expect(openPage).toContain("Action School");
+    expect(openPage).toContain("school admin");
+    expect(openPage).toContain("Accept invitation");
+    const usedPage = await html(used.secret);
+    expect(usedPage).toContain("contributor");
+    expect(usedPage).toContain("already used");
+    expect(usedPage).not.toContain("Accept invitation");
+    const expiredPage = await html(expired.secret);
+    expect(expiredPage).toContain("reader");
+    expect(expiredPage).toContain("expired");
+    expect(expiredPage).not.toContain("Accept invitation");
+    expect(await html("no-such-secret")).not.toContain("Accept invitation");
+  });
 });
