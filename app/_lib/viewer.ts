@@ -7,7 +7,7 @@ import { resolveViewer } from "@/lib/auth/resolve-viewer";
 import type { Viewer } from "@/lib/auth/visibility";
 import { getDb } from "@/lib/db";
 import { getEnv } from "@/lib/env";
-import { clientAddress, forwardingHeaders } from "@/lib/auth/trusted-proxy";
+import { clientAddress, forwardingHeaders, publicOrigin } from "@/lib/auth/trusted-proxy";
 
 /**
  * Who is looking at the page or calling the API: the session cookie, an `Authorization: Bearer`
@@ -33,6 +33,23 @@ export const getViewer = cache(async (): Promise<Viewer> => {
  */
 export async function getClientAddress(): Promise<string> {
   return clientAddress(forwardingHeaders(await headers()), getEnv().LAPSEBANK_TRUSTED_PROXY);
+}
+
+/**
+ * The origin links shown on pages should use (pages and actions have no Request): LAPSEBANK_PUBLIC_URL,
+ * else what a trusted proxy forwarded, else the Host this request came to (plain http: set
+ * LAPSEBANK_PUBLIC_URL when the server sits behind TLS).
+ */
+export async function getPublicOrigin(): Promise<string> {
+  const headerStore = await headers();
+  const env = getEnv();
+  let requestUrl = "http://localhost";
+  try {
+    requestUrl = new URL(`http://${headerStore.get("host") ?? "localhost"}`).toString();
+  } catch {
+    // A malformed Host header: fall back to localhost rather than fail the page.
+  }
+  return publicOrigin({ requestUrl, headers: headerStore, publicUrl: env.LAPSEBANK_PUBLIC_URL, proxy: env.LAPSEBANK_TRUSTED_PROXY });
 }
 
 /** Who to credit in the audit log for what this request changes. */

@@ -5,11 +5,11 @@ import { redirect } from "next/navigation";
 import { revalidatePath } from "next/cache";
 import { safeRedirectPath } from "@/lib/auth/safe-redirect";
 import { z } from "zod";
-import { acceptInvitation, AccountError, changePassword, createApiToken, createInvitation, createUser, revokeApiToken, roleSchema, SESSION_COOKIE, setMembershipRole, signIn, signInSchema, signOut, signUpSchema, tokenScopeSchema } from "@/lib/auth/accounts";
+import { acceptInvitation, AccountError, invitationUrl, changePassword, createApiToken, createInvitation, createUser, revokeApiToken, roleSchema, SESSION_COOKIE, setMembershipRole, signIn, signInSchema, signOut, signUpSchema, tokenScopeSchema } from "@/lib/auth/accounts";
 import { can } from "@/lib/auth/permissions";
 import { getDb } from "@/lib/db";
 import { getEnv } from "@/lib/env";
-import { getClientAddress, getViewer } from "@/app/_lib/viewer";
+import { getClientAddress, getPublicOrigin, getViewer } from "@/app/_lib/viewer";
 
 export type FormState = { ok: boolean; message: string; fieldErrors?: Record<string, string[]>; secret?: string } | null;
 
@@ -33,15 +33,19 @@ export async function signUpAction(_: FormState, formData: FormData): Promise<Fo
   const parsed = signUpSchema.safeParse({ email: formData.get("email"), password: formData.get("password"), displayName: formData.get("displayName") });
   if (!parsed.success) return { ok: false, message: "Some fields need attention", fieldErrors: fieldErrorsOf(parsed.error) };
   const db = getDb();
+  // Signing up from an invitation link joins its school at once (and is how an invitation-only program admits people).
+  const invitationSecret = String(formData.get("invitation") ?? "").trim();
+  let joined = false;
   try {
-    await createUser(db, parsed.data);
+    const user = await createUser(db, parsed.data, invitationSecret ? { invitationSecret } : {});
+    joined = user.joined !== null;
     const session = await signIn(db, parsed.data, await getClientAddress());
     await startSession(session.sessionSecret, session.expiresAt);
   } catch (error) {
     if (error instanceof AccountError) return { ok: false, message: error.message };
     throw error;
   }
-  redirect(safeRedirectPath(formData.get("next"), "/account"));
+  redirect(joined ? "/account?joined=1" : safeRedirectPath(formData.get("next"), "/account"));
 }
 
 export async function signInAction(_: FormState, formData: FormData): Promise<FormState> {
@@ -111,7 +115,7 @@ export async function revokeTokenAction(formData: FormData): Promise<void> {
 export async function acceptInvitationAction(formData: FormData): Promise<void> {
   const viewer = await getViewer();
   const secret = String(formData.get("secret") ?? "");
-  if (viewer.kind !== "member") redirect(`/account?next=${encodeURIComponent(`/invite/${secret}`)}`);
+  if (viewer.kind !== "member") redirect(`/account?next=${encodeURIComponent(`/invite/${secret}`)}&invitation=${encodeURIComponent(secret)}`);
   try {
     await acceptInvitation(getDb(), secret, viewer.userId);
   } catch (error) {
@@ -129,7 +133,7 @@ export async function createInvitationAction(_: FormState, formData: FormData): 
   if (!parsed.success) return { ok: false, message: "Choose a role", fieldErrors: fieldErrorsOf(parsed.error) };
   if (!can(viewer, "members.manage", { schoolId: parsed.data.schoolId })) return { ok: false, message: "Only the school's admins can invite people." };
   const invitation = await createInvitation(getDb(), { ...parsed.data, createdById: viewer.kind === "member" ? viewer.userId : null });
-  return { ok: true, message: `Invitation link (valid until ${invitation.expiresAt.toISOString().slice(0, 10)}, usable once):`, secret: `/invite/${invitation.secret}` };
+  return { ok: true, message: `Invitation link (valid until ${invitation.expiresAt.toISOString().slice(0, 10)}, usable once):`, secret: invitationUrl(await getPublicOrigin(), invitation.secret) };
 }
 
 export async function setRoleAction(formData: FormData): Promise<void> {

@@ -1,6 +1,6 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { getAccount, hasAnyAccount, listSchools } from "@/lib/query/accounts";
+import { getAccount, hasAnyAccount, listSchools, signUpNeedsInvitation } from "@/lib/query/accounts";
 import { getViewer } from "@/app/_lib/viewer";
 import { can } from "@/lib/auth/permissions";
 import { signOutAction, revokeTokenAction } from "./actions";
@@ -11,6 +11,7 @@ export const metadata: Metadata = { title: "Account" };
 export default async function AccountPage({ searchParams }: { searchParams: Promise<Record<string, string | string[] | undefined>> }) {
   const params = await searchParams;
   const next = typeof params.next === "string" ? params.next : "";
+  const invitation = typeof params.invitation === "string" ? params.invitation.slice(0, 200) : "";
   const viewer = await getViewer();
   const error = params.error === "token-not-found" ? "No such token among yours: nothing was revoked." : "";
   if (viewer.kind === "member" && !can(viewer, "account.manage", { schoolId: null })) {
@@ -22,14 +23,21 @@ export default async function AccountPage({ searchParams }: { searchParams: Prom
     );
   }
   if (viewer.kind !== "member") {
-    const anyAccount = await hasAnyAccount();
+    const [anyAccount, needsInvitation] = await Promise.all([hasAnyAccount(), signUpNeedsInvitation()]);
+    // Invitation-only: without a link the sign-up form could only be refused, so say so instead.
+    const signUpOpen = !anyAccount || !needsInvitation || invitation !== "";
     return (
       <>
         <h1>Account</h1>
         {anyAccount ? <p className="lead">Sign in to see your school&apos;s flights and the program&apos;s shared flights, and to upload. Without an account you see public flights only.</p> : null}
         <div className="cards">
           {anyAccount ? <SignInForm next={next} /> : null}
-          <SignUpForm next={next} first={!anyAccount} />
+          {signUpOpen ? <SignUpForm next={next} first={!anyAccount} invitation={invitation} /> : (
+            <section className="panel" aria-labelledby="sign-up-closed-heading">
+              <h2 id="sign-up-closed-heading">Create an account</h2>
+              <p>This program accepts new accounts by invitation only. Ask a school admin for an invitation link and open it to sign up.</p>
+            </section>
+          )}
         </div>
       </>
     );

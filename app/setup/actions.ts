@@ -9,10 +9,10 @@ import {
   type LayoutSuggestion, type ReprocessOutcome,
 } from "@/lib/ingest";
 import { loggerLayoutSpecSchema } from "@/lib/ingest/layout";
-import { analysisParametersSchema } from "@/lib/ingest/schemas";
+import { analysisParametersSchema, invitationOnlySchema } from "@/lib/ingest/schemas";
 import {
   CalibrationFitError, calibrationFitInputSchema, deleteSetupItem, findSetupItem, fitCalibrationPoints, mountSensor, SETUP_ITEM_KINDS, payloadUpdateSchema, previewLayoutSample,
-  sensorMountInputSchema, sensorUpdateSchema, setProgramParameters, SetupConflictError, siteUpdateSchema, updateLayout, updatePayload,
+  sensorMountInputSchema, sensorUpdateSchema, setInvitationOnly, setProgramParameters, SetupConflictError, siteUpdateSchema, updateLayout, updatePayload,
   updateSensor, updateSite, type CalibrationFitResult, type LayoutPreview, type SetupItemKind,
 } from "@/lib/ingest/setup-more";
 import { currentActor, getViewer } from "@/app/_lib/viewer";
@@ -299,6 +299,16 @@ export async function saveProgramParameters(input: unknown): Promise<ActionResul
   await setProgramParameters(db, parsed.data, await currentActor("web setup"));
   refreshSetup();
   return actionOk({ affectedFlightCount: (await selectFlights(db, { all: true })).length });
+}
+
+/** "Accounts by invitation only": program admins only. */
+export async function saveInvitationOnly(input: unknown): Promise<ActionResult<{ invitationOnly: boolean }>> {
+  if (!mayEditProgram(await getViewer())) return actionFailure("Only a program administrator may change who can sign up");
+  const parsed = invitationOnlySchema.safeParse(input);
+  if (!parsed.success) return zodFailure(parsed.error, "Choose on or off");
+  const invitationOnly = await setInvitationOnly(getDb(), parsed.data.invitationOnly, await currentActor("web setup"));
+  refreshSetup();
+  return actionOk({ invitationOnly });
 }
 
 // --- re-analysis ---------------------------------------------------------------------------------

@@ -34,23 +34,38 @@ export async function countUsers(db: Db): Promise<number> {
 }
 
 export class AccountError extends Error {
-  constructor(readonly code: "email-taken" | "bad-credentials" | "rate-limited" | "invalid-invitation" | "not-found" | "already-member" | "weak-password", message: string, readonly retryAfterS?: number) {
+  constructor(readonly code: "email-taken" | "bad-credentials" | "rate-limited" | "invalid-invitation" | "not-found" | "already-member" | "weak-password" | "invitation-required", message: string, readonly retryAfterS?: number) {
     super(message);
     this.name = "AccountError";
   }
 }
 
-/** Creates a user; the very first account becomes program admin. */
-export async function createUser(db: Db, input: z.input<typeof signUpSchema>, options: { programAdmin?: boolean } = {}) {
+/** Whether the program accepts new accounts only through a valid invitation link. */
+export async function isInvitationOnly(db: Pick<Db, "programSettings">): Promise<boolean> {
+  const row = await db.programSettings.findUnique({ where: { id: 1 }, select: { invitationOnly: true } });
+  return row?.invitationOnly === true;
+}
+
+/**
+ * Creates a user; the very first account becomes program admin. With `invitationSecret` the new
+ * person also joins that invitation's school in the same transaction (the link is then used).
+ * When the program is invitation-only, every account after the first needs a valid invitation:
+ * without one the sign-up is refused with AccountError("invitation-required").
+ */
+export async function createUser(db: Db, input: z.input<typeof signUpSchema>, options: { programAdmin?: boolean; invitationSecret?: string } = {}) {
   const data = signUpSchema.parse(input);
   const existing = await db.user.findUnique({ where: { email: data.email } });
   if (existing) throw new AccountError("email-taken", "An account with this email already exists; sign in instead.");
   const passwordHash = await hashPassword(data.password);
   return db.$transaction(async (tx) => {
     const isFirst = (await tx.user.count()) === 0;
+    if (!isFirst && !options.invitationSecret && (await isInvitationOnly(tx))) {
+      throw new AccountError("invitation-required", "This program accepts new accounts by invitation only. Ask a school admin for an invitation link and open it to sign up.");
+    }
     const user = await tx.user.create({ data: { email: data.email, displayName: data.displayName, passwordHash, isProgramAdmin: isFirst || options.programAdmin === true } });
     await tx.auditEvent.create({ data: { actorUserId: user.id, actorLabel: data.email, action: "user.create", entityType: "user", entityId: user.id, details: { programAdmin: user.isProgramAdmin } } });
-    return { id: user.id, email: user.email, displayName: user.displayName, isProgramAdmin: user.isProgramAdmin };
+    const joined = options.invitationSecret ? await useInvitation(tx, options.invitationSecret, user.id) : null;
+    return { id: user.id, email: user.email, displayName: user.displayName, isProgramAdmin: user.isProgramAdmin, joined };
   });
 }
 
@@ -238,25 +253,50 @@ const ROLE_RANK: Record<Role, number> = { reader: 1, contributor: 2, "school-adm
  * The link then stops working. Returns the role the person has afterwards.
  */
 export async function acceptInvitation(db: Db, invitationSecret: string, userId: string): Promise<{ schoolId: string; role: Role }> {
-  return db.$transaction(async (tx) => {
-    const invitation = await tx.invitation.findUnique({ where: { tokenHash: sha256(invitationSecret) } });
-    if (!invitation || invitation.usedAt || invitation.expiresAt < new Date()) throw new AccountError("invalid-invitation", "This invitation link has expired or was already used. Ask for a new one.");
-    const invited = roleSchema.parse(invitation.role);
-    const used = await tx.invitation.updateMany({ where: { id: invitation.id, usedAt: null }, data: { usedAt: new Date() } });
-    if (used.count !== 1) throw new AccountError("invalid-invitation", "This invitation link was already used.");
-    const existing = await tx.membership.findUnique({ where: { userId_schoolId: { userId, schoolId: invitation.schoolId } } });
-    const current = existing ? roleSchema.safeParse(existing.role) : null;
-    let role: Role = invited;
-    if (!existing) {
-      await tx.membership.create({ data: { userId, schoolId: invitation.schoolId, role: invited } });
-    } else if (current?.success && ROLE_RANK[current.data] >= ROLE_RANK[invited]) {
-      role = current.data;
-    } else {
-      await tx.membership.update({ where: { id: existing.id }, data: { role: invited } });
-    }
-    await tx.auditEvent.create({ data: { actorUserId: userId, schoolId: invitation.schoolId, action: "membership.join", entityType: "membership", entityId: `${userId}:${invitation.schoolId}`, details: { invitedRole: invited, role, previousRole: existing?.role ?? null } } });
-    return { schoolId: invitation.schoolId, role };
-  });
+  return db.$transaction((tx) => useInvitation(tx, invitationSecret, userId));
+}
+
+type Tx = Parameters<Parameters<Db["$transaction"]>[0]>[0];
+
+/** Marks an invitation used and applies its role to the user, inside the caller's transaction. */
+async function useInvitation(tx: Tx, invitationSecret: string, userId: string): Promise<{ schoolId: string; role: Role }> {
+  const invitation = await tx.invitation.findUnique({ where: { tokenHash: sha256(invitationSecret) } });
+  if (!invitation || invitation.usedAt || invitation.expiresAt < new Date()) throw new AccountError("invalid-invitation", "This invitation link has expired or was already used. Ask for a new one.");
+  const invited = roleSchema.parse(invitation.role);
+  const used = await tx.invitation.updateMany({ where: { id: invitation.id, usedAt: null }, data: { usedAt: new Date() } });
+  if (used.count !== 1) throw new AccountError("invalid-invitation", "This invitation link was already used.");
+  const existing = await tx.membership.findUnique({ where: { userId_schoolId: { userId, schoolId: invitation.schoolId } } });
+  const current = existing ? roleSchema.safeParse(existing.role) : null;
+  let role: Role = invited;
+  if (!existing) {
+    await tx.membership.create({ data: { userId, schoolId: invitation.schoolId, role: invited } });
+  } else if (current?.success && ROLE_RANK[current.data] >= ROLE_RANK[invited]) {
+    role = current.data;
+  } else {
+    await tx.membership.update({ where: { id: existing.id }, data: { role: invited } });
+  }
+  await tx.auditEvent.create({ data: { actorUserId: userId, schoolId: invitation.schoolId, action: "membership.join", entityType: "membership", entityId: `${userId}:${invitation.schoolId}`, details: { invitedRole: invited, role, previousRole: existing?.role ?? null } } });
+  return { schoolId: invitation.schoolId, role };
+}
+
+export type InvitationState = "open" | "used" | "expired";
+
+/**
+ * What an invitation page shows: the school and role the link offers and whether it can still be
+ * accepted; null for a secret that matches no invitation. Only the secret's hash is looked up.
+ */
+export async function describeInvitation(db: Db, invitationSecret: string, now: Date = new Date()): Promise<{ schoolName: string; role: Role; expiresAt: Date; state: InvitationState } | null> {
+  const row = await db.invitation.findUnique({ where: { tokenHash: sha256(invitationSecret) }, include: { school: { select: { name: true } } } });
+  if (!row) return null;
+  const role = roleSchema.safeParse(row.role);
+  if (!role.success) return null;
+  const state: InvitationState = row.usedAt ? "used" : row.expiresAt < now ? "expired" : "open";
+  return { schoolName: row.school.name, role: role.data, expiresAt: row.expiresAt, state };
+}
+
+/** The absolute link of an invitation, on the given public origin (see trusted-proxy.ts publicOrigin). */
+export function invitationUrl(origin: string, invitationSecret: string): string {
+  return new URL(`/invite/${encodeURIComponent(invitationSecret)}`, origin).toString();
 }
 
 /**

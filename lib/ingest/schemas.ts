@@ -56,6 +56,9 @@ export const analysisParametersSchema = z.object({
 
 export const DEFAULT_PARAMETERS: AnalysisParameters = DEFAULT_ANALYSIS_PARAMETERS;
 
+/** The program's sign-up rule (Setup form and the setup service). */
+export const invitationOnlySchema = z.object({ invitationOnly: z.boolean() });
+
 export const visibilitySchema = z.enum(["school", "program", "public"]);
 export type Visibility = z.infer<typeof visibilitySchema>;
 

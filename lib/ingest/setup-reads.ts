@@ -11,7 +11,9 @@ import { getProgramParameters } from "./store.ts";
 /** The program's analysis parameters now, whether they were ever set, and the built-in defaults. */
 export async function getProgramSettings(db: Db = getDb()) {
   const [row, parameters] = await Promise.all([db.programSettings.findUnique({ where: { id: 1 } }), getProgramParameters(db)]);
-  return { parameters, defaults: DEFAULT_PARAMETERS, updatedAt: row ? row.updatedAt.toISOString() : null, isDefault: !row };
+  // A row made only to store invitationOnly holds `{}`: its parameters are still the built-in ones.
+  const ownParameters = row !== null && typeof row.analysisParameters === "object" && row.analysisParameters !== null && Object.keys(row.analysisParameters).length > 0;
+  return { parameters, defaults: DEFAULT_PARAMETERS, updatedAt: ownParameters ? row.updatedAt.toISOString() : null, isDefault: !ownParameters, invitationOnly: row?.invitationOnly === true };
 }
 
 /** What uses a setup item ("3 flights"), for its page's delete button; empty when it can be deleted. */

@@ -1,6 +1,6 @@
 import "server-only";
 import { getDb, type Db } from "../db/index.ts";
-import { countUsers } from "../auth/accounts.ts";
+import { countUsers, isInvitationOnly } from "../auth/accounts.ts";
 
 /** The signed-in person's schools, roles and API tokens (never the token secrets). */
 export async function getAccount(userId: string, db: Db = getDb()) {
@@ -17,6 +17,11 @@ export async function getAccount(userId: string, db: Db = getDb()) {
 
 export async function hasAnyAccount(db: Db = getDb()): Promise<boolean> {
   return (await countUsers(db)) > 0;
+}
+
+/** Whether new accounts need an invitation link (the program setting; the first account never does). */
+export async function signUpNeedsInvitation(db: Db = getDb()): Promise<boolean> {
+  return isInvitationOnly(db);
 }
 
 export async function listSchoolMembers(schoolId: string, db: Db = getDb()) {

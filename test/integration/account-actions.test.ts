@@ -152,4 +152,64 @@ describe("account actions, client address and public URLs (SQLite)", () => {
     expect((await viewerFromSession(database.db, here))?.kind).toBe("member");
     expect(await viewerFromSession(database.db, elsewhere.sessionSecret)).toBeNull();
   });
+
+  test("invitation links are absolute; invitation-only refuses plain sign-up and admits through a link", async () => {
+    request.env = { LAPSEBANK_PUBLIC_URL: "https://archive.example.org", LAPSEBANK_TRUSTED_PROXY: parseTrustedProxy(undefined) };
+    request.headers = new Headers({ [PEER_ADDRESS_HEADER]: "127.0.0.1", host: "localhost:3000" });
+    // The owner (the first account here: program admin, and this school's admin) is still signed in.
+    const made = await actions.createInvitationAction(null, form({ schoolId: school.school.id, role: "reader" }));
+    // Issue 16: before, the link was the bare path /invite/<secret>.
+    expect(made?.secret).toMatch(/^https:\/\/archive\.example\.org\/invite\/[A-Za-z0-9_-]+$/);
+    const secret = new URL(made?.secret ?? "").pathname.split("/").at(-1) ?? "";
+
+    const setup = await import("../../app/setup/actions.ts");
+    expect(await setup.saveInvitationOnly({ invitationOnly: true })).toMatchObject({ ok: true, data: { invitationOnly: true } });
+    const ownerCookie = request.cookies.get(SESSION_COOKIE)!;
+
+    // A visitor without a link is refused with a message saying why.
+    request.cookies = new Map();
+    const refused = await actions.signUpAction(null, form({ email: "walk-in@example.org", password, displayName: "Walk-in" }));
+    expect(refused).toMatchObject({ ok: false });
+    expect(refused?.message).toMatch(/invitation only/);
+    expect(await database.db.user.count({ where: { email: "walk-in@example.org" } })).toBe(0);
+    // A visitor cannot change the rule.
+    expect(await setup.saveInvitationOnly({ invitationOnly: false })).toMatchObject({ ok: false });
+
+    // Through the link: the account is made and joins the school.
+    expect(await redirectOf(actions.signUpAction(null, form({ email: "reader@example.org", password, displayName: "Reader", invitation: secret, next: `/invite/${secret}` })))).toBe("/account?joined=1");
+    const reader = await database.db.user.findUniqueOrThrow({ where: { email: "reader@example.org" } });
+    expect((await database.db.membership.findFirstOrThrow({ where: { userId: reader.id } })).role).toBe("reader");
+
+    request.cookies = new Map([[SESSION_COOKIE, ownerCookie]]);
+    expect(await setup.saveInvitationOnly({ invitationOnly: false })).toMatchObject({ ok: true, data: { invitationOnly: false } });
+    request.env = {};
+  });
+
+  test("the invitation page names school and role, and shows Accept only while the link is open", async () => {
+    request.headers = new Headers({ [PEER_ADDRESS_HEADER]: "127.0.0.1" });
+    const { createInvitation } = await import("../../lib/auth/accounts.ts");
+    const { renderToStaticMarkup } = await import("react-dom/server");
+    const page = (await import("../../app/invite/[secret]/page.tsx")).default;
+    const html = async (secret: string) => renderToStaticMarkup(await page({ params: Promise.resolve({ secret }), searchParams: Promise.resolve({}) }));
+    const open = await createInvitation(database.db, { schoolId: school.school.id, role: "school-admin", createdById: null });
+    const used = await createInvitation(database.db, { schoolId: school.school.id, role: "contributor", createdById: null });
+    const expired = await createInvitation(database.db, { schoolId: school.school.id, role: "reader", createdById: null });
+    await database.db.invitation.update({ where: { id: used.id }, data: { usedAt: new Date() } });
+    await database.db.invitation.update({ where: { id: expired.id }, data: { expiresAt: new Date(Date.now() - 60_000) } });
+    // The owner is signed in, so an open link offers Accept.
+    const openPage = await html(open.secret);
+    // Issue 16: before, the page named neither school nor role and always offered Accept.
+    expect(openPage).toContain("Action School");
+    expect(openPage).toContain("school admin");
+    expect(openPage).toContain("Accept invitation");
+    const usedPage = await html(used.secret);
+    expect(usedPage).toContain("contributor");
+    expect(usedPage).toContain("already used");
+    expect(usedPage).not.toContain("Accept invitation");
+    const expiredPage = await html(expired.secret);
+    expect(expiredPage).toContain("reader");
+    expect(expiredPage).toContain("expired");
+    expect(expiredPage).not.toContain("Accept invitation");
+    expect(await html("no-such-secret")).not.toContain("Accept invitation");
+  });
 });

@@ -41,13 +41,15 @@ export function SignInForm({ next }: { next: string }) {
   );
 }
 
-export function SignUpForm({ next, first }: { next: string; first: boolean }) {
+export function SignUpForm({ next, first, invitation = "" }: { next: string; first: boolean; invitation?: string }) {
   const [state, action, pending] = useActionState(signUpAction, null);
   return (
     <form action={action} className="panel" aria-labelledby="sign-up-heading">
       <h2 id="sign-up-heading">{first ? "Create the first account" : "Create an account"}</h2>
       {first ? <p className="muted">No account exists yet, so anyone at this computer may do everything. The first account becomes the program admin; after that, visitors see public flights only until they sign in.</p> : null}
       <input type="hidden" name="next" value={next} />
+      {invitation ? <input type="hidden" name="invitation" value={invitation} /> : null}
+      {invitation ? <p className="muted">The new account joins the school of your invitation link.</p> : null}
       <label className="field">Name<input name="displayName" autoComplete="name" required /></label>
       <FieldError state={state} name="displayName" />
       <label className="field">Email<input name="email" type="email" autoComplete="email" required /></label>

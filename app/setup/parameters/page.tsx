@@ -4,6 +4,8 @@ import { getProgramSettings } from "@/lib/ingest/setup-reads";
 import { ParametersForm } from "@/app/_components/setup/parameters-form";
 import { getViewer } from "@/app/_lib/viewer";
 import { membersOnly } from "@/app/setup/_lib/members-only";
+import { mayEditProgram } from "@/app/setup/_lib/permissions";
+import { SignUpRuleForm } from "@/app/_components/setup/sign-up-rule-form";
 
 export const metadata: Metadata = { title: "Analysis parameters · Setup" };
 
@@ -11,7 +13,7 @@ export default async function ParametersPage() {
   const gate = await membersOnly();
   if (gate) return gate;
   await connection();
-  await getViewer();
+  const viewer = await getViewer();
   const settings = await getProgramSettings();
   return (
     <>
@@ -22,6 +24,7 @@ export default async function ParametersPage() {
       </p>
       <p className="muted small">{settings.isDefault ? "The built-in defaults are in use." : `Last changed ${settings.updatedAt?.slice(0, 16).replace("T", " ")} UTC.`}</p>
       <ParametersForm initial={settings.parameters} defaults={settings.defaults} />
+      <SignUpRuleForm initial={settings.invitationOnly} editable={mayEditProgram(viewer)} />
     </>
   );
 }

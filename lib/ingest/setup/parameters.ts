@@ -18,3 +18,16 @@ export async function setProgramParameters(db: DbLike, input: z.input<typeof ana
   await audit(db, actor, null, "program.parameters", "program", "1", json);
   return parameters;
 }
+
+// --- who may sign up ----------------------------------------------------------------------------
+
+/**
+ * Turns "accounts by invitation only" on or off (id 1 of ProgramSettings; a program that never
+ * saved parameters keeps the built-in ones). The first account can always be made.
+ */
+export async function setInvitationOnly(db: DbLike, invitationOnly: boolean, actor: Actor = SETUP_ACTOR): Promise<boolean> {
+  // `{}`: no parameters of its own, so the built-in defaults stay in use (store.ts getProgramParameters).
+  await db.programSettings.upsert({ where: { id: 1 }, create: { id: 1, analysisParameters: {}, invitationOnly }, update: { invitationOnly } });
+  await audit(db, actor, null, "program.invitation-only", "program", "1", { invitationOnly });
+  return invitationOnly;
+}
