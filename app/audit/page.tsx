@@ -6,7 +6,7 @@ import { formatUtc } from "@/app/_lib/format";
 import { auditSchoolIds } from "@/lib/auth/permissions";
 import { listDeletedFlights } from "@/lib/query/accounts";
 import { searchParamsToRecord } from "@/lib/query/archive-filter";
-import { auditFilterChoices, listAuditLog, type AuditEventRow } from "@/lib/query/audit";
+import { auditFilterChoices, isNamedEntityType, listAuditLog, type AuditEventRow } from "@/lib/query/audit";
 import { auditHref, parseAuditFilter } from "@/lib/query/audit-params";
 
 export const metadata: Metadata = { title: "Audit log" };
@@ -16,11 +16,8 @@ type SearchParams = Promise<Record<string, string | string[] | undefined>>;
 function EntityCell({ event }: { event: AuditEventRow }) {
   const { kind, id, name } = event.entity;
   if (kind === "flight" && name !== null) return <Link href={`/flights/${id}`}>{name}</Link>;
-  return name !== null ? <>{kind} “{name}”</> : <span className="muted">{kind} {id}{ENTITY_GONE.has(kind) ? " (no longer stored)" : ""}</span>;
+  return name !== null ? <>{kind} “{name}”</> : <span className="muted">{kind} {id}{isNamedEntityType(kind) ? " (no longer stored)" : ""}</span>;
 }
-
-/** Kinds whose name is looked up: an unnamed one was removed since the event. */
-const ENTITY_GONE = new Set(["user", "school", "flight", "site", "payload", "sensor", "layout", "api-token"]);
 
 export default async function AuditPage({ searchParams }: { searchParams: SearchParams }) {
   const viewer = await getViewer();

@@ -25,6 +25,11 @@ const DETAIL_REFS: Record<string, RefKind> = { payloadId: "payload", siteId: "si
 /** Entity types whose entityId names a row of a known kind. */
 const ENTITY_REFS: Record<string, RefKind> = { user: "user", school: "school", flight: "flight", site: "site", payload: "payload", sensor: "sensor", layout: "layout", "api-token": "api-token" };
 
+/** Whether entity rows of this type are looked up by name (an unnamed one was removed since). */
+export function isNamedEntityType(entityType: string): boolean {
+  return entityType in ENTITY_REFS;
+}
+
 export interface AuditRef { kind: string; id: string; name: string | null }
 export interface AuditDetail { key: string; label: string; text: string }
 export interface AuditEventRow {
