@@ -36,16 +36,6 @@ export async function listSchools(db: Db = getDb()) {
   return db.school.findMany({ orderBy: { name: "asc" }, select: { id: true, name: true } });
 }
 
-/** Audit events, newest first; `schoolIds` null means every school (program admin). */
-export async function listAuditEvents(schoolIds: string[] | null, options: { page: number; pageSize: number }, db: Db = getDb()) {
-  const where = schoolIds === null ? {} : { schoolId: { in: schoolIds } };
-  const [total, events] = await Promise.all([
-    db.auditEvent.count({ where }),
-    db.auditEvent.findMany({ where, orderBy: { at: "desc" }, skip: (options.page - 1) * options.pageSize, take: options.pageSize }),
-  ]);
-  return { total, events: events.map((e) => ({ ...e, at: e.at.toISOString(), details: e.details === null ? null : JSON.stringify(e.details) })) };
-}
-
 /** Soft-deleted flights an admin may restore. */
 export async function listDeletedFlights(schoolIds: string[] | null, db: Db = getDb()) {
   return db.flight.findMany({
