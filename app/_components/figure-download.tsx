@@ -12,7 +12,7 @@ const STYLE_PROPERTIES = [
 const TEXT_PROPERTIES = ["font-family", "font-size", "font-weight", "font-style", "text-anchor", "dominant-baseline"] as const;
 
 export interface FigureDownloadProps {
-  /** The element that holds the rendered chart (its first <svg class="recharts-surface"> is the figure). */
+  /** The element that holds the rendered chart (its drawing surface, not a legend icon, is the figure). */
   target: RefObject<HTMLElement | null>;
   /** Title for the file name, e.g. the flight title. */
   title: string;
@@ -73,8 +73,23 @@ function legendOverlay(container: HTMLElement, chartBox: DOMRect, serializer: XM
   return parts.join("");
 }
 
+/** The chart's drawing surface: the largest <svg class="recharts-surface"> outside the legend (each legend icon is one too). */
+function chartSurface(container: HTMLElement): SVGSVGElement | null {
+  let best: SVGSVGElement | null = null;
+  let bestArea = 0;
+  for (const candidate of Array.from(container.querySelectorAll<SVGSVGElement>("svg.recharts-surface"))) {
+    if (candidate.closest(".recharts-legend-wrapper")) continue;
+    const box = candidate.getBoundingClientRect();
+    if (box.width * box.height > bestArea) {
+      best = candidate;
+      bestArea = box.width * box.height;
+    }
+  }
+  return best;
+}
+
 function serialiseFigure(container: HTMLElement, captionLines: string[]): StandaloneSvg {
-  const svg = container.querySelector<SVGSVGElement>("svg.recharts-surface");
+  const svg = chartSurface(container);
   if (!svg) throw new Error("the chart has not been drawn yet");
   const box = svg.getBoundingClientRect();
   const clone = svg.cloneNode(true) as SVGSVGElement;
