@@ -3,7 +3,9 @@
 import {
   CartesianGrid, Legend, ReferenceArea, ReferenceLine, ResponsiveContainer, Scatter, ScatterChart, Tooltip, XAxis, YAxis, ZAxis,
 } from "recharts";
+import { useRef } from "react";
 import type { ProfileChartData } from "@/app/_lib/profile-series";
+import { FigureDownload } from "@/app/_components/figure-download";
 
 const COLOURS = {
   ascent: "#1d5c8f",
@@ -19,12 +21,13 @@ function NoMarker() {
 }
 
 /** Temperature (°C, x) against altitude (km, y): ascent, descent, inversions, tropopause, adiabats. */
-export function ProfileChart({ data, title }: { data: ProfileChartData; title: string }) {
+export function ProfileChart({ data, title, scope, version }: { data: ProfileChartData; title: string; scope: string; version: string }) {
+  const frame = useRef<HTMLDivElement>(null);
   const [tMin, tMax] = data.temperatureDomainC;
   const [zMin, zMax] = data.altitudeDomainKm;
   return (
     <figure className="chart">
-      <div className="chart-frame" role="img" aria-label={`${title}: temperature against altitude. ${data.ascent.length} ascent levels${data.descent.length ? `, ${data.descent.length} descent levels` : ""}${data.tropopauses.length ? `; ${data.tropopauses.map((t) => t.label).join("; ")}` : ""}.`}>
+      <div ref={frame} className="chart-frame" role="img" aria-label={`${title}: temperature against altitude. ${data.ascent.length} ascent levels${data.descent.length ? `, ${data.descent.length} descent levels` : ""}${data.tropopauses.length ? `; ${data.tropopauses.map((t) => t.label).join("; ")}` : ""}.`}>
         <ResponsiveContainer width="100%" height={560}>
           <ScatterChart margin={{ top: 16, right: 24, bottom: 36, left: 16 }}>
             <CartesianGrid stroke="#d9dee3" />
@@ -132,6 +135,14 @@ export function ProfileChart({ data, title }: { data: ProfileChartData; title: s
         Shaded bands are inversions; the purple line marks the tropopause. Both adiabats start at the lowest ascent level: the dry one is straight; the saturated one is the path of a saturated
         parcel lifted from there and bends towards the dry one as the air cools and holds less water.
       </figcaption>
+      <FigureDownload
+        target={frame}
+        title={`${title} temperature profile`}
+        shown="Temperature against altitude: binned levels, inversions, tropopause and adiabats"
+        scope={scope}
+        count={`n = ${data.ascent.length} ascent level${data.ascent.length === 1 ? "" : "s"}${data.descent.length > 0 ? `, ${data.descent.length} descent level${data.descent.length === 1 ? "" : "s"}` : ""}`}
+        version={version}
+      />
     </figure>
   );
 }

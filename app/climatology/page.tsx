@@ -14,6 +14,7 @@ import { buildClimatologyCharts } from "@/app/_components/climatology/chart-data
 import { ExportPanel } from "@/app/_components/export/export-panel";
 import { HiddenFlightsNotice } from "@/app/_components/hidden-flights-notice";
 import { countHiddenFlights } from "@/lib/query/flights";
+import packageJson from "@/package.json" with { type: "json" };
 
 export const metadata: Metadata = { title: "Climatology" };
 
@@ -58,6 +59,13 @@ export default async function ClimatologyPage({ searchParams }: { searchParams: 
   const fieldErrors = parsed.ok ? (problem?.field ? { [problem.field]: [problem.message] } : {}) : parsed.fieldErrors;
   const search = parsed.ok ? climatologySearchParams(parsed.query, record).toString() : "";
   const charts = result && parsed.ok ? buildClimatologyCharts(result, parsed.query.chartX, digitsForUnit(result.metric.unit)) : null;
+  const figure = result ? {
+    scope: `Climatology query: ${search === "" ? "the default (every flight, grouped by season)" : decodeURIComponent(search.replace(/\+/g, " ")).split("&").join("; ")}`
+      + (result.invented.contributingCount > 0 ? `; ${result.invented.contributingCount} of the flights are invented demo data` : ""),
+    count: `n = ${result.overall.n} flight${result.overall.n === 1 ? "" : "s"} in ${result.groups.length} group${result.groups.length === 1 ? "" : "s"}`
+      + (charts && charts.omittedPoints > 0 ? ` (points: an even sample of ${charts.plottedPoints})` : ""),
+    version: packageJson.version,
+  } : null;
 
   return (
     <>
@@ -82,7 +90,7 @@ export default async function ClimatologyPage({ searchParams }: { searchParams: 
         </div>
       )}
 
-      {result && parsed.ok && charts && (
+      {result && parsed.ok && charts && figure && (
         <section aria-labelledby="result-heading">
           <h2 id="result-heading">{METRIC_CHOICES[parsed.query.metric]}{result.band ? `: ${formatNumber(result.band.baseM / 1000, 1)}–${formatNumber(result.band.topM / 1000, 1)} km ${HEIGHT_REFERENCE_WORDS[result.band.reference]} (${result.band.reference.toUpperCase()}), ${result.band.phase}` : ""}</h2>
           <p role="status" className="muted">
@@ -121,11 +129,11 @@ export default async function ClimatologyPage({ searchParams }: { searchParams: 
               <CrossTableView result={result} />
             </>
           )}
-          <GroupBoxPlot charts={charts} />
+          <GroupBoxPlot charts={charts} figure={figure} />
           <h2>Against {parsed.query.chartX === "day-of-year" ? "day of year" : "launch hour"}</h2>
-          <MetricScatter charts={charts} />
+          <MetricScatter charts={charts} figure={figure} />
           <h2>Mean temperature profile per group</h2>
-          <GroupProfiles charts={charts} />
+          <GroupProfiles charts={charts} figure={figure} />
           <h2>Contributing flights</h2>
           {parsed.query.flights === "none" ? (
             <p className="muted">Flight lists were left out (flights=none in the address).</p>

@@ -3,7 +3,8 @@
 import {
   CartesianGrid, Legend, ReferenceArea, ReferenceLine, ResponsiveContainer, Scatter, ScatterChart, Symbols, Tooltip, XAxis, YAxis,
 } from "recharts";
-import type { ReactNode } from "react";
+import { useRef, type ReactNode } from "react";
+import { FigureDownload } from "@/app/_components/figure-download";
 import type { BoxPlotSeries, ChartPoint, ClimatologyCharts, GroupSymbol, ProfileSeries, ScatterSeries } from "./chart-data";
 
 const MONTH_START_DAYS = [1, 32, 60, 91, 121, 152, 182, 213, 244, 274, 305, 335];
@@ -45,12 +46,20 @@ function NoMarker(): ReactNode {
   return <g />;
 }
 
+/** What a downloaded figure's caption says besides what the chart shows: the query in words, n and the version. */
+export interface FigureContext {
+  scope: string;
+  count: string | null;
+  version: string;
+}
+
 function numberText(value: unknown): string {
   return typeof value === "number" ? String(Math.round(value * 100) / 100) : String(value);
 }
 
 /** Per-group box (quartiles, median line, whiskers to min and max), mean diamond and every flight as a linked point. */
-export function GroupBoxPlot({ charts }: { charts: ClimatologyCharts }) {
+export function GroupBoxPlot({ charts, figure }: { charts: ClimatologyCharts; figure: FigureContext }) {
+  const frame = useRef<HTMLDivElement>(null);
   const boxes: BoxPlotSeries[] = charts.boxes;
   if (boxes.length === 0) return null;
   const values = boxes.flatMap((b) => [b.min, b.max]);
@@ -60,7 +69,7 @@ export function GroupBoxPlot({ charts }: { charts: ClimatologyCharts }) {
   const title = axisTitle(charts.metricLabel, charts.unit);
   return (
     <figure className="chart" aria-labelledby="box-caption">
-      <div className="chart-frame" style={{ minHeight: 420 }} role="group" aria-label={`${title} by group: box and points. ${boxes.map((b) => `${b.label}: n ${b.n}, median ${numberText(b.median)}, quartiles ${numberText(b.q1)} to ${numberText(b.q3)} ${charts.unit}`).join("; ")}.`}>
+      <div ref={frame} className="chart-frame" style={{ minHeight: 420 }} role="group" aria-label={`${title} by group: box and points. ${boxes.map((b) => `${b.label}: n ${b.n}, median ${numberText(b.median)}, quartiles ${numberText(b.q1)} to ${numberText(b.q3)} ${charts.unit}`).join("; ")}.`}>
         <ResponsiveContainer width="100%" height={420}>
           <ScatterChart margin={{ top: 16, right: 24, bottom: 48, left: 24 }}>
             <CartesianGrid stroke="#d9dee3" />
@@ -102,19 +111,21 @@ export function GroupBoxPlot({ charts }: { charts: ClimatologyCharts }) {
         (each group has its own symbol); click a point to open its flight.
         {charts.omittedPoints > 0 && ` The charts show an even sample of ${charts.plottedPoints} of the ${charts.plottedPoints + charts.omittedPoints} flights; the statistics use them all.`}
       </figcaption>
+      <FigureDownload target={frame} title={`${title} by group`} shown={`${title} by group: box plot with every flight`} scope={figure.scope} count={figure.count} version={figure.version} />
     </figure>
   );
 }
 
 /** The metric against day of year or local launch hour, one symbol per group, each point linking to its flight. */
-export function MetricScatter({ charts }: { charts: ClimatologyCharts }) {
+export function MetricScatter({ charts, figure }: { charts: ClimatologyCharts; figure: FigureContext }) {
+  const frame = useRef<HTMLDivElement>(null);
   const series: ScatterSeries[] = charts.scatter;
   if (series.length === 0) return null;
   const title = axisTitle(charts.metricLabel, charts.unit);
   const byDay = charts.scatterAxis === "day-of-year";
   return (
     <figure className="chart" aria-labelledby="scatter-caption">
-      <div className="chart-frame" style={{ minHeight: 420 }} role="group" aria-label={`${title} against ${byDay ? "day of year" : "local launch hour"}, ${series.reduce((s, g) => s + g.points.length, 0)} flights.`}>
+      <div ref={frame} className="chart-frame" style={{ minHeight: 420 }} role="group" aria-label={`${title} against ${byDay ? "day of year" : "local launch hour"}, ${series.reduce((s, g) => s + g.points.length, 0)} flights.`}>
         <ResponsiveContainer width="100%" height={420}>
           <ScatterChart margin={{ top: 16, right: 24, bottom: 48, left: 24 }}>
             <CartesianGrid stroke="#d9dee3" />
@@ -139,12 +150,14 @@ export function MetricScatter({ charts }: { charts: ClimatologyCharts }) {
         Each point is one flight; groups differ by symbol and colour. Click a point to open its flight.
         {charts.omittedPoints > 0 && ` An even sample of ${charts.plottedPoints} of the ${charts.plottedPoints + charts.omittedPoints} flights is shown.`}
       </figcaption>
+      <FigureDownload target={frame} title={`${title} against ${byDay ? "day of year" : "launch hour"}`} shown={`${title} against ${byDay ? "day of year (local date)" : "local launch hour"}, one point per flight`} scope={figure.scope} count={figure.count} version={figure.version} />
     </figure>
   );
 }
 
 /** Mean temperature profile per group (solid line with the group's symbol every 2 km) and ±1 SD bounds (dashed, same colour). */
-export function GroupProfiles({ charts }: { charts: ClimatologyCharts }) {
+export function GroupProfiles({ charts, figure }: { charts: ClimatologyCharts; figure: FigureContext }) {
+  const frame = useRef<HTMLDivElement>(null);
   const profiles: ProfileSeries[] = charts.profiles.filter((p) => p.mean.length > 1);
   if (profiles.length === 0) return null;
   const temperatures = profiles.flatMap((p) => [...p.low, ...p.high, ...p.mean].map((l) => l.temperatureC));
@@ -154,7 +167,7 @@ export function GroupProfiles({ charts }: { charts: ClimatologyCharts }) {
   const zMax = Math.ceil(Math.max(...altitudes));
   return (
     <figure className="chart" aria-labelledby="profile-caption">
-      <div className="chart-frame" role="img" aria-label={`Mean ${charts.phase} temperature profile per group: ${profiles.map((p) => `${p.label}, ${p.mean.length} levels`).join("; ")}.`}>
+      <div ref={frame} className="chart-frame" role="img" aria-label={`Mean ${charts.phase} temperature profile per group: ${profiles.map((p) => `${p.label}, ${p.mean.length} levels`).join("; ")}.`}>
         <ResponsiveContainer width="100%" height={560}>
           <ScatterChart margin={{ top: 16, right: 24, bottom: 40, left: 16 }}>
             <CartesianGrid stroke="#d9dee3" />
@@ -177,6 +190,7 @@ export function GroupProfiles({ charts }: { charts: ClimatologyCharts }) {
         Mean of the {charts.phase} levels of each group&apos;s flights per altitude bin (solid), with ±1 standard deviation across flights (dashed).
         Levels reached by fewer than half of a group&apos;s flights are left out.
       </figcaption>
+      <FigureDownload target={frame} title={`mean ${charts.phase} temperature profiles`} shown={`Mean ${charts.phase} temperature profile per group, ±1 standard deviation`} scope={figure.scope} count={figure.count} version={figure.version} />
     </figure>
   );
 }
