@@ -2,6 +2,7 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { archiveFilterSchema, searchParamsToRecord, type ArchiveFilter } from "@/lib/query/archive-filter";
 import { countHiddenFlights, listFlights } from "@/lib/query/flights";
+import { parseDroppingProblems } from "@/lib/query/strict-params";
 import { listSchoolsAndSites } from "@/lib/query/setup";
 import { getViewer } from "@/app/_lib/viewer";
 import { formatKmValue, formatLocalHour, formatNumber, formatSeason, formatUtc } from "@/app/_lib/format";
@@ -20,23 +21,8 @@ type SearchParams = Promise<Record<string, string | string[] | undefined>>;
  * value does not throw away the rest of the filter.
  */
 function parseFilter(record: Record<string, string>): { filter: ArchiveFilter; problems: string[] } {
-  const problems: string[] = [];
-  const input = { ...record };
-  for (let attempt = 0; attempt < 10; attempt++) {
-    const parsed = archiveFilterSchema.safeParse(input);
-    if (parsed.success) return { filter: parsed.data, problems };
-    for (const issue of parsed.error.issues) {
-      if (issue.code === "unrecognized_keys") {
-        problems.push(`${issue.message} (ignored)`);
-        for (const key of issue.keys) delete input[key];
-        continue;
-      }
-      const key = String(issue.path[0] ?? "");
-      problems.push(`${key || "filter"}: ${issue.message} (ignored)`);
-      delete input[key];
-    }
-  }
-  return { filter: archiveFilterSchema.parse({}), problems };
+  const { value, problems } = parseDroppingProblems(archiveFilterSchema, record);
+  return { filter: value, problems };
 }
 
 /** Parameters the app itself puts in the Archive address that are not part of the filter. */

@@ -3,7 +3,7 @@
  * parameter is refused by name rather than ignored. Pure: no database, no environment.
  */
 import { z } from "zod";
-import { strictQueryObject } from "./strict-params.ts";
+import { parseDroppingProblems, strictQueryObject } from "./strict-params.ts";
 
 const blankToUndefined = (v: unknown) => (v === "" || v === null ? undefined : v);
 /** A calendar day "YYYY-MM-DD" that exists (2026-02-30 does not). */
@@ -32,23 +32,8 @@ export const AUDIT_FILTER_KEYS = ["school", "person", "action", "from", "to", "d
  * named in `problems` (the page shows them), so one bad value does not throw away the rest.
  */
 export function parseAuditFilter(record: Record<string, string>): { filter: AuditFilter; problems: string[] } {
-  const problems: string[] = [];
-  const input: Record<string, string> = { ...record };
-  for (let attempt = 0; attempt < 10; attempt++) {
-    const parsed = auditFilterSchema.safeParse(input);
-    if (parsed.success) return { filter: parsed.data, problems };
-    for (const issue of parsed.error.issues) {
-      if (issue.code === "unrecognized_keys") {
-        problems.push(`${issue.message} (ignored)`);
-        for (const key of issue.keys) delete input[key];
-        continue;
-      }
-      const key = String(issue.path[0] ?? "");
-      problems.push(`${key || "filter"}: ${issue.message} (ignored)`);
-      delete input[key];
-    }
-  }
-  return { filter: auditFilterSchema.parse({}), problems };
+  const { value, problems } = parseDroppingProblems(auditFilterSchema, record);
+  return { filter: value, problems };
 }
 
 /** The address of the Audit page for `filter` with some values changed (blank values left out). */

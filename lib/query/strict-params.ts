@@ -24,3 +24,27 @@ export function strictQueryObject<Shape extends z.core.$ZodLooseShape>(shape: Sh
 export function unknownParametersOf(issues: readonly z.core.$ZodIssue[]): string[] {
   return issues.flatMap((issue) => (issue.code === "unrecognized_keys" ? issue.keys : []));
 }
+
+/**
+ * Reads a page's address leniently: a parameter that is unknown or does not validate is dropped and named in
+ * `problems` (the page shows them), so one bad value does not throw away the rest. The API refuses instead.
+ */
+export function parseDroppingProblems<T>(schema: z.ZodType<T>, record: Record<string, string>): { value: T; problems: string[] } {
+  const problems: string[] = [];
+  const input: Record<string, string> = { ...record };
+  for (let attempt = 0; attempt < 10; attempt++) {
+    const parsed = schema.safeParse(input);
+    if (parsed.success) return { value: parsed.data, problems };
+    for (const issue of parsed.error.issues) {
+      if (issue.code === "unrecognized_keys") {
+        problems.push(`${issue.message} (ignored)`);
+        for (const key of issue.keys) delete input[key];
+        continue;
+      }
+      const key = String(issue.path[0] ?? "");
+      problems.push(`${key || "filter"}: ${issue.message} (ignored)`);
+      delete input[key];
+    }
+  }
+  return { value: schema.parse({}), problems };
+}
