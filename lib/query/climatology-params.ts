@@ -153,28 +153,32 @@ const isoDate = (label: string) =>
       .optional(),
   );
 
-/** "2023,2024" or "2023-2025" (inclusive). */
-const yearList = z.preprocess(blankToUndefined, z.string().max(200).optional()).transform((text, ctx) => {
-  if (text === undefined) return [] as number[];
+/** "2023,2024" or "2023-2025" (inclusive) as sorted years; empty text gives none. Throws YearListError. */
+class YearListError extends Error {}
+function yearsOfList(text: string): number[] {
   const years = new Set<number>();
   for (const item of text.split(",").map((s) => s.trim()).filter((s) => s !== "")) {
     const range = /^(\d{4})\s*[-–]\s*(\d{4})$/.exec(item);
     if (range) {
       const from = Number(range[1]);
       const to = Number(range[2]);
-      if (to < from || to - from > 200) {
-        ctx.addIssue({ code: "custom", message: `year range "${item}" must run forwards (e.g. 2023-2025)` });
-        return z.NEVER;
-      }
+      if (to < from || to - from > 200) throw new YearListError(`year range "${item}" must run forwards (e.g. 2023-2025)`);
       for (let y = from; y <= to; y++) years.add(y);
-    } else if (/^\d{4}$/.test(item)) {
-      years.add(Number(item));
-    } else {
-      ctx.addIssue({ code: "custom", message: `"${item}" is not a year or a year range like 2023-2025` });
-      return z.NEVER;
-    }
+    } else if (/^\d{4}$/.test(item)) years.add(Number(item));
+    else throw new YearListError(`"${item}" is not a year or a year range like 2023-2025`);
   }
   return [...years].sort((a, b) => a - b);
+}
+
+const yearList = z.preprocess(blankToUndefined, z.string().max(200).optional()).transform((text, ctx) => {
+  if (text === undefined) return [] as number[];
+  try {
+    return yearsOfList(text);
+  } catch (error) {
+    if (!(error instanceof YearListError)) throw error;
+    ctx.addIssue({ code: "custom", message: error.message });
+    return z.NEVER;
+  }
 });
 
 const monthSelectionField = (label: string) =>
@@ -285,19 +289,14 @@ function parseHourRange(text: string, kind: "hour" | "sunrise"): { fromH: number
 }
 
 function parseYears(text: string): number[] {
-  const years = new Set<number>();
-  for (const item of text.split(",").map((s) => s.trim()).filter((s) => s !== "")) {
-    const range = /^(\d{4})\s*[-–]\s*(\d{4})$/.exec(item);
-    if (range) {
-      const from = Number(range[1]);
-      const to = Number(range[2]);
-      if (to < from || to - from > 200) throw new ClaimGroupInputError(`year range "${item}" must run forwards (e.g. 2023-2025)`);
-      for (let y = from; y <= to; y++) years.add(y);
-    } else if (/^\d{4}$/.test(item)) years.add(Number(item));
-    else throw new ClaimGroupInputError(`"${item}" is not a year or a year range like 2023-2025`);
+  let years: number[];
+  try {
+    years = yearsOfList(text);
+  } catch (error) {
+    throw error instanceof YearListError ? new ClaimGroupInputError(error.message) : error;
   }
-  if (years.size === 0) throw new ClaimGroupInputError("year: needs a year, e.g. year:2024");
-  return [...years].sort((a, b) => a - b);
+  if (years.length === 0) throw new ClaimGroupInputError("year: needs a year, e.g. year:2024");
+  return years;
 }
 
 function parseIds(text: string, kind: "site" | "school"): string[] {
