@@ -27,12 +27,12 @@ const BAND_RUNS = 5;
 const BAND_BASE_M = 1000;
 const BAND_TOP_M = 6000;
 
-function percentile(sortedMs: readonly number[], p: number): number {
+export function percentile(sortedMs: readonly number[], p: number): number {
   const index = Math.min(sortedMs.length - 1, Math.max(0, Math.ceil(p * sortedMs.length) - 1));
-  return sortedMs[index] as number;
+  return sortedMs[index] ?? Number.NaN;
 }
 
-async function timeRuns(runs: number, warmUp: number, fn: () => Promise<unknown>): Promise<number[]> {
+export async function timeRuns(runs: number, warmUp: number, fn: () => Promise<unknown>): Promise<number[]> {
   for (let i = 0; i < warmUp; i++) await fn();
   const times: number[] = [];
   for (let i = 0; i < runs; i++) {
@@ -43,7 +43,7 @@ async function timeRuns(runs: number, warmUp: number, fn: () => Promise<unknown>
   return times.sort((a, b) => a - b);
 }
 
-function query(record: Record<string, string>) {
+export function query(record: Record<string, string>) {
   const parsed = parseClimatologyQuery(record);
   if (!parsed.ok) throw new Error(parsed.message);
   return parsed.query;

@@ -23,11 +23,10 @@ import { DuckDBInstance, type DuckDBConnection } from "@duckdb/node-api";
 import { chromium } from "playwright-core";
 import type { DbHandle } from "../../lib/db/index.ts";
 import { getClimatology } from "../../lib/query/climatology-core.ts";
-import { parseClimatologyQuery } from "../../lib/query/climatology-params.ts";
 import { writeSyntheticArchive } from "../../seed/synthetic-archive.ts";
 import { CHROMIUM_PATH } from "../support/e2e-browser.ts";
 import { freeLoopbackPort } from "../support/free-port.ts";
-import { withPostgres, withSqlite } from "./climatology.bench.ts";
+import { percentile, query, timeRuns, withPostgres, withSqlite } from "./climatology.bench.ts";
 import type { BenchResult } from "./types.ts";
 
 const FLIGHTS = Number(process.env.LAPSEBANK_BENCH_FLIGHTS ?? 10_000);
@@ -53,28 +52,6 @@ const PAGE_QUERIES: ReadonlyArray<Record<string, string>> = [
   { metric: "tropospheric-lapse-rate", groupBy: "season" },
   { metric: "band-lapse-rate", bandBaseKm: "1", bandTopKm: "6", groupBy: "season" },
 ];
-
-function percentile(sortedMs: readonly number[], p: number): number {
-  const index = Math.min(sortedMs.length - 1, Math.max(0, Math.ceil(p * sortedMs.length) - 1));
-  return sortedMs[index] ?? Number.NaN;
-}
-
-async function timeRuns(runs: number, warmUp: number, fn: () => Promise<unknown>): Promise<number[]> {
-  for (let i = 0; i < warmUp; i++) await fn();
-  const times: number[] = [];
-  for (let i = 0; i < runs; i++) {
-    const t0 = performance.now();
-    await fn();
-    times.push(performance.now() - t0);
-  }
-  return times.sort((a, b) => a - b);
-}
-
-function query(record: Record<string, string>) {
-  const parsed = parseClimatologyQuery(record);
-  if (!parsed.ok) throw new Error(parsed.message);
-  return parsed.query;
-}
 
 function search(record: Record<string, string>): string {
   return new URLSearchParams(record).toString();

@@ -1,5 +1,4 @@
-import { spawn, type ChildProcess } from "node:child_process";
-import path from "node:path";
+import type { ChildProcess } from "node:child_process";
 import { chromium, type Browser, type BrowserContext, type Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import { addMembership, createApiToken, createUser } from "../../lib/auth/accounts.ts";
@@ -8,7 +7,7 @@ import { ingestFlightFile } from "../../lib/ingest/index.ts";
 import { CHROMIUM_PATH } from "../support/e2e-browser.ts";
 import { makeFlightFile, setUpSchool } from "../support/flight-files.ts";
 import { createTestDatabase, testEngines, type TestDatabase } from "../support/test-databases.ts";
-import { freeLoopbackPort } from "../support/free-port.ts";
+import { loopbackContext, startNextApp } from "../support/e2e-app.ts";
 
 // Program-wide sharing on one database served by TWO app processes (nothing may live in one
 // process's memory): sessions, login rate limits and visibility must hold across both.
@@ -22,35 +21,13 @@ const ids = { privateA: "", programB: "", schoolA: "", schoolB: "", siteA: "", l
 
 
 async function startApp(url: string): Promise<string> {
-  const port = await freeLoopbackPort();
-  const server = spawn(path.resolve("node_modules/.bin/next"), ["start", "-H", "127.0.0.1", "-p", String(port)], {
-    env: { ...process.env, DATABASE_URL: url, NODE_ENV: "production", PORT: String(port) },
-    stdio: ["ignore", "pipe", "pipe"],
-    detached: true,
-  });
-  let output = "";
-  server.stdout?.on("data", (c: Buffer) => (output = (output + c.toString()).slice(-5000)));
-  server.stderr?.on("data", (c: Buffer) => (output = (output + c.toString()).slice(-5000)));
+  const { base, server } = await startNextApp(url);
   servers.push(server);
-  const base = `http://127.0.0.1:${port}`;
-  const deadline = Date.now() + 60_000;
-  while (Date.now() < deadline) {
-    if (server.exitCode !== null) throw new Error(`app process exited early:\n${output}`);
-    try {
-      const response = await fetch(`${base}/account`, { signal: AbortSignal.timeout(5000) });
-      if (response.status < 500) return base;
-    } catch {
-      // not up yet
-    }
-    await new Promise((r) => setTimeout(r, 300));
-  }
-  throw new Error(`app process did not answer within 60 s:\n${output}`);
+  return base;
 }
 
-async function newContext(): Promise<{ context: BrowserContext; page: Page }> {
-  const context = await browser.newContext({ viewport: { width: 1280, height: 900 } });
-  await context.route("**/*", (route) => (new URL(route.request().url()).hostname === "127.0.0.1" ? route.continue() : route.abort()));
-  return { context, page: await context.newPage() };
+function newContext(): Promise<{ context: BrowserContext; page: Page }> {
+  return loopbackContext(browser);
 }
 
 async function textOf(locator: import("playwright-core").Locator): Promise<string> {
